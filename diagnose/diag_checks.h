@@ -1,0 +1,49 @@
+/* diag_checks.h - the individual residual checks (one pure function each).
+ *
+ * Every check reads X[0..n-1] and fills *OUT (see diag_test.h); it returns
+ * HN_OK, or HN_ESHORT / HN_EINVAL / HN_ENOMEM, in which case *OUT is marked
+ * invalid with the reason.  ALPHA decides OUT->pass. */
+#ifndef DIAG_CHECKS_H
+#define DIAG_CHECKS_H
+
+#include <stddef.h>
+#include "diag_test.h"
+
+/* --- mean zero, serial correlation (diag_portmanteau.c, diag_stats.c) --- */
+int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out);
+/* Ljung-Box / Box-Pierce on ACF lags 1..m with df = m - df_adjust. */
+int diag_ljung_box(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out);
+int diag_box_pierce(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out);
+/* Cumulative periodogram with Bartlett's Kolmogorov-Smirnov bound. */
+int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out);
+
+/* --- constant variance: global against local (diag_variance.c) --- */
+/* Equality of block variances (Brown-Forsythe: Levene on |x - block median|)
+ * and of block means (one-way ANOVA), X cut into NBLOCKS consecutive blocks. */
+int diag_brown_forsythe_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out);
+int diag_anova_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out);
+/* The same tests for arbitrary groups: X holds the groups one after another,
+ * SIZES[g] observations in group g.  F statistic, dfs and p returned. */
+int diag_anova_groups(const double *x, const size_t *sizes, size_t ngroups,
+                      double *F, double *df1, double *df2, double *p);
+int diag_levene_groups(const double *x, const size_t *sizes, size_t ngroups, int median_centred,
+                       double *W, double *df1, double *df2, double *p);
+/* Rolling-window mean and sd (divisor w-1) of width W: n-w+1 values each. */
+int diag_rolling(const double *x, size_t n, size_t w, double *mean, double *sd);
+
+/* --- volatility clustering (diag_arch.c) --- */
+int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *out);
+/* Engle's ARCH-LM: regress x_t^2 on 1, x_{t-1}^2..x_{t-q}^2; statistic (n-q) R^2, df q. */
+int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out);
+
+/* --- randomness (diag_runs.c) --- */
+/* Wald-Wolfowitz runs above/below the median (values equal to the median dropped). */
+int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out);
+int diag_turning_points(const double *x, size_t n, double alpha, diag_test *out);
+
+/* --- normality, information only (diag_normal.c) --- */
+/* Jarque-Bera with biased (divisor n) moments; also skewness and excess kurtosis. */
+int diag_jarque_bera(const double *x, size_t n, double alpha, diag_test *out,
+                     double *skewness, double *excess_kurtosis);
+
+#endif
