@@ -1,0 +1,219 @@
+/* fit_garch_lik.c - ARMA-GARCH(1,1) conditional log-likelihood with its analytic gradient. */
+#include "fit_garch_lik.h"
+#include "hn_status.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_sf_gamma.h>
+#include <gsl/gsl_sf_psi.h>
+
+/* Neumaier's compensated sum: running sum S and correction C. */
+typedef struct { double s, c; } ksum;
+
+static void ksum_add(ksum *k, double x)
+{
+    double t = k->s + x;
+    if (fabs(k->s) >= fabs(x))
+        k->c += (k->s - t) + x;
+    else
+        k->c += (x - t) + k->s;
+    k->s = t;
+}
+
+static double ksum_value(const ksum *k) { return k->s + k->c; }
+
+int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_spec *spec)
+{
+    memset(w, 0, sizeof *w);
+    if (!y || !spec || !spec->garch)
+        return HN_EINVAL;
+    size_t p = (size_t)fit_spec_max_ar(spec);
+    if (n <= p + 1)
+        return HN_EINVAL;
+    w->y = y;
+    w->n = n;
+    w->spec = *spec;
+    w->start = p;
+    w->N = n - p;
+    w->k_mean = (spec->mean ? 1 : 0) + spec->n_ar + spec->n_ma;
+    w->np = fit_spec_nparams(spec);
+    w->i_omega = w->k_mean;
+    w->has_nu = spec->dist == FIT_DIST_T;
+    w->e = malloc(w->N * sizeof *w->e);
+    w->h = malloc(w->N * sizeof *w->h);
+    w->de = w->k_mean ? malloc(w->N * (size_t)w->k_mean * sizeof *w->de) : NULL;
+    w->tmp = malloc(4 * (size_t)w->np * sizeof *w->tmp);
+    if (!w->e || !w->h || (w->k_mean && !w->de) || !w->tmp) {
+        fit_garch_work_free(w);
+        return HN_ENOMEM;
+    }
+    return HN_OK;
+}
+
+void fit_garch_work_free(fit_garch_work *w)
+{
+    free(w->e);
+    free(w->de);
+    free(w->h);
+    free(w->tmp);
+    w->e = w->de = w->h = w->tmp = NULL;
+}
+
+/* Pass 1: residuals e_t and, when WANT_D, their derivatives w.r.t. the mean
+ * parameters:  e_t = (y_t - mu) - sum_k ar_k (y_{t-k} - mu) - sum_j ma_j e_{t-j},
+ * shocks before the first residual are zero. */
+static void arma_residuals(fit_garch_work *w, const double *th, int want_d)
+{
+    const fit_spec *s = &w->spec;
+    const int km = w->k_mean;
+    const int ia = s->mean ? 1 : 0;       /* first AR coefficient */
+    const int im = ia + s->n_ar;          /* first MA coefficient */
+    const double mu = s->mean ? th[0] : 0.0;
+    double sum_ar = 0.0;
+    for (int k = 0; k < s->n_ar; k++)
+        sum_ar += th[ia + k];
+
+    for (size_t i = 0; i < w->N; i++) {
+        size_t t = w->start + i;
+        double v = w->y[t] - mu;
+        for (int k = 0; k < s->n_ar; k++)
+            v -= th[ia + k] * (w->y[t - (size_t)s->ar_lag[k]] - mu);
+        for (int j = 0; j < s->n_ma; j++) {
+            size_t L = (size_t)s->ma_lag[j];
+            if (i >= L)
+                v -= th[im + j] * w->e[i - L];
+        }
+        w->e[i] = v;
+        if (!want_d)
+            continue;
+        double *d = w->de + i * (size_t)km;
+        if (s->mean)
+            d[0] = -1.0 + sum_ar;
+        for (int k = 0; k < s->n_ar; k++)
+            d[ia + k] = -(w->y[t - (size_t)s->ar_lag[k]] - mu);
+        for (int j = 0; j < s->n_ma; j++) {
+            size_t L = (size_t)s->ma_lag[j];
+            d[im + j] = i >= L ? -w->e[i - L] : 0.0;
+        }
+        for (int j = 0; j < s->n_ma; j++) {
+            size_t L = (size_t)s->ma_lag[j];
+            if (i < L)
+                continue;
+            const double *dp = w->de + (i - L) * (size_t)km;
+            double m = th[im + j];
+            for (int c = 0; c < km; c++)
+                d[c] -= m * dp[c];
+        }
+    }
+}
+
+int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
+                     double *grad, double *scores)
+{
+    const int km = w->k_mean, np = w->np, io = w->i_omega;
+    const int kv = km + 3;                 /* parameters the variance depends on */
+    const size_t N = w->N;
+    const int want_d = grad != NULL || scores != NULL;
+    const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
+    const double nu = w->has_nu ? th[np - 1] : 0.0;
+
+    for (int i = 0; i < np; i++)
+        if (!isfinite(th[i]))
+            return HN_EDOMAIN;
+    if (w->has_nu && !(nu > 2.0))
+        return HN_EDOMAIN;
+
+    arma_residuals(w, th, want_d);
+
+    /* sigma2_0 = e2_0 = s2 = mean e_t^2 at the current mean parameters. */
+    double *dh = w->tmp;                   /* d sigma2_t        (kv) */
+    double *de2 = w->tmp + np;             /* d e^2_{t-1}       (km) */
+    double *g = w->tmp + 2 * np;           /* gradient          (np) */
+    ksum ss = { 0.0, 0.0 };
+    for (size_t i = 0; i < N; i++)
+        ksum_add(&ss, w->e[i] * w->e[i]);
+    const double s2 = ksum_value(&ss) / (double)N;
+    if (!(s2 > 0.0) || !isfinite(s2))
+        return HN_EDOMAIN;
+    if (want_d) {
+        memset(g, 0, (size_t)np * sizeof *g);
+        memset(dh, 0, (size_t)kv * sizeof *dh);
+        for (int c = 0; c < km; c++) {
+            double a = 0.0;
+            for (size_t i = 0; i < N; i++)
+                a += w->e[i] * w->de[i * (size_t)km + c];
+            dh[c] = 2.0 * a / (double)N;  /* d sigma2_0 */
+            de2[c] = dh[c];                /* d e2_0 */
+        }
+    }
+
+    /* Constant of each term, and its derivative in nu. */
+    double cst, dcst = 0.0;
+    if (w->has_nu) {
+        cst = gsl_sf_lngamma(0.5 * (nu + 1.0)) - gsl_sf_lngamma(0.5 * nu) -
+              0.5 * log(M_PI * (nu - 2.0));
+        dcst = 0.5 * gsl_sf_psi(0.5 * (nu + 1.0)) - 0.5 * gsl_sf_psi(0.5 * nu) -
+               0.5 / (nu - 2.0);
+    } else {
+        cst = -0.5 * log(2.0 * M_PI);
+    }
+
+    ksum acc = { 0.0, 0.0 };
+    double hprev = s2, e2prev = s2;
+    for (size_t i = 0; i < N; i++) {
+        const double e = w->e[i];
+        const double h = omega + alpha * e2prev + beta * hprev;
+        if (!(h > 0.0) || !isfinite(h))
+            return HN_EDOMAIN;
+        w->h[i] = h;
+        const double e2 = e * e;
+        double lt, dl_dh, dl_de, dl_dnu = 0.0;
+        if (w->has_nu) {
+            const double u = e2 / (h * (nu - 2.0));
+            const double lu = log1p(u);
+            lt = -0.5 * log(h) - 0.5 * (nu + 1.0) * lu;
+            dl_dh = -0.5 / h * (1.0 - (nu + 1.0) * u / (1.0 + u));
+            dl_de = -(nu + 1.0) * e / (h * (nu - 2.0) * (1.0 + u));
+            dl_dnu = dcst - 0.5 * lu + 0.5 * (nu + 1.0) * u / ((1.0 + u) * (nu - 2.0));
+        } else {
+            lt = -0.5 * (log(h) + e2 / h);
+            dl_dh = -0.5 / h * (1.0 - e2 / h);
+            dl_de = -e / h;
+        }
+        ksum_add(&acc, lt);
+
+        if (want_d) {
+            /* d sigma2_t = [mean: alpha d e2_{t-1}; omega 1; alpha e2_{t-1};
+             *               beta sigma2_{t-1}] + beta d sigma2_{t-1} */
+            for (int c = 0; c < km; c++)
+                dh[c] = alpha * de2[c] + beta * dh[c];
+            dh[km] = 1.0 + beta * dh[km];
+            dh[km + 1] = e2prev + beta * dh[km + 1];
+            dh[km + 2] = hprev + beta * dh[km + 2];
+            const double *d = w->de + i * (size_t)km;
+            double *row = scores ? scores + i * (size_t)np : w->tmp + 3 * np;
+            for (int c = 0; c < km; c++)
+                row[c] = dl_dh * dh[c] + dl_de * d[c];
+            for (int c = km; c < kv; c++)
+                row[c] = dl_dh * dh[c];
+            if (w->has_nu)
+                row[np - 1] = dl_dnu;
+            for (int c = 0; c < np; c++)
+                g[c] += row[c];
+            for (int c = 0; c < km; c++)
+                de2[c] = 2.0 * e * d[c];
+        }
+        hprev = h;
+        e2prev = e2;
+    }
+
+    double total = ksum_value(&acc) + (double)N * cst;
+    if (!isfinite(total))
+        return HN_EDOMAIN;
+    *ll = total;
+    if (grad)
+        memcpy(grad, g, (size_t)np * sizeof *grad);
+    return HN_OK;
+}

@@ -1,0 +1,46 @@
+/* fit_garch_lik.h - ARMA-GARCH(1,1) conditional log-likelihood, gradient and scores (internal). */
+#ifndef FIT_GARCH_LIK_H
+#define FIT_GARCH_LIK_H
+
+#include <stddef.h>
+#include "fit_spec.h"
+
+/* Workspace of one fit: sized once, so likelihood passes allocate nothing.
+ * Natural parameter vector theta follows fit_spec.h:
+ *   [mu] ar.. ma.. omega alpha1 beta1 [nu]. */
+typedef struct {
+    const double *y;     /* the series (borrowed, not owned) */
+    size_t n;            /* observations */
+    fit_spec spec;       /* copy of the spec */
+    size_t start;        /* first residual index = max AR lag */
+    size_t N;            /* residuals in the likelihood: n - start */
+    int k_mean;          /* mean parameters: [mu] + n_ar + n_ma */
+    int np;              /* all parameters */
+    int i_omega;         /* index of omega (alpha1, beta1 follow) */
+    int has_nu;          /* 1 with Student-t innovations (nu last) */
+    double *e;           /* N residuals at the last evaluation */
+    double *de;          /* N x k_mean derivatives of e_t (row-major) */
+    double *h;           /* N conditional variances at the last evaluation */
+    double *tmp;         /* 4 * np scratch */
+} fit_garch_work;
+
+/* Size W for SPEC (spec->garch set) on Y[0..n-1]; Y must outlive W.
+ * HN_OK, HN_EINVAL (no GARCH part, n <= max AR lag) or HN_ENOMEM
+ * (then W holds nothing to free).  Release with fit_garch_work_free. */
+int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_spec *spec);
+
+/* Free the arrays of W (safe on a zeroed or already freed W). */
+void fit_garch_work_free(fit_garch_work *w);
+
+/* Conditional log-likelihood at natural parameters THETA (w->np values):
+ * e_t from the ARMA recursion (pre-sample shocks zero), sigma2_0 = e2_0 =
+ * mean of e_t^2 at these mean parameters, all N terms with their constants
+ * (2 pi for the normal; the standardised Student-t density otherwise).
+ * Writes *LL; when GRAD is not NULL its analytic gradient (w->np values);
+ * when SCORES is not NULL the per-observation scores (N x np, row-major).
+ * Leaves w->e and w->h at THETA.  HN_OK, or HN_EDOMAIN when a variance is
+ * not positive, nu <= 2 or a value is not finite. */
+int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
+                     double *grad, double *scores);
+
+#endif
