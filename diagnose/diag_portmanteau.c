@@ -1,0 +1,314 @@
+/* diag_portmanteau.c - mean t-test, Ljung-Box, Box-Pierce and Bartlett's cumulative periodogram test. */
+#include "diag_checks.h"
+#include "diag_stats.h"
+#include "hn_status.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_cdf.h>
+#include <gsl/gsl_fft_real.h>
+
+static const char SERIAL_EFFECT[] =
+    "share of variance a long autoregression predicts (order-adjusted)";
+
+/* Fill the common fields of a computed test. */
+static void fill(diag_test *t, const char *name, diag_criterion c, double stat, double df,
+                 double p, double alpha)
+{
+    memset(t, 0, sizeof *t);
+    t->name = name;
+    t->criterion = c;
+    t->valid = 1;
+    t->statistic = stat;
+    t->df = df;
+    t->p = p;
+    t->pass = !(p < alpha);
+    t->effect = NAN;
+    t->effect_label = NULL;
+}
+
+static int bad_alpha(double alpha)
+{
+    return !(alpha > 0.0 && alpha < 1.0);
+}
+
+int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out)
+{
+    static const char name[] = "mean-t";
+    double mean, sd;
+    if (bad_alpha(alpha)) {
+        diag_test_invalid(out, name, DIAG_MEAN, "alpha must lie strictly between 0 and 1");
+        return HN_EINVAL;
+    }
+    if (n < 2) {
+        diag_test_invalid(out, name, DIAG_MEAN, "needs at least 2 observations");
+        return HN_ESHORT;
+    }
+    int rc = diag_mean_sd(x, n, &mean, &sd);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_MEAN, "a value is not finite");
+        return HN_EINVAL;
+    }
+    if (!(sd > 0.0)) {
+        diag_test_invalid(out, name, DIAG_MEAN, "the values are constant: no spread to test against");
+        return HN_EINVAL;
+    }
+    double df = (double)(n - 1);
+    double t = mean / (sd / sqrt((double)n));
+    double p = 2.0 * gsl_cdf_tdist_Q(fabs(t), df);
+    if (p > 1.0)
+        p = 1.0;
+    fill(out, name, DIAG_MEAN, t, df, p, alpha);
+    out->effect = mean / sd;
+    out->effect_label = "mean in standard deviations";
+    snprintf(out->detail, sizeof out->detail, "mean %.6g, sd %.6g, n %zu; two-sided Student-t",
+             mean, sd, n);
+    return HN_OK;
+}
+
+/* Autocorrelations to lag max(M, share order), the serial effect, and the
+ * list of lags 1..M outside +/- z/sqrt(n).  ACF gets a malloc'd array. */
+static int serial_common(const double *x, size_t n, int m, double alpha, double **acf_out,
+                         double *effect, char *lags, size_t lagslen)
+{
+    int order = diag_share_order(n);
+    int top = m > order ? m : order;
+    double *acf = malloc((size_t)top * sizeof *acf);
+    double *pacf = malloc((size_t)top * sizeof *pacf);
+    *acf_out = NULL;
+    if (!acf || !pacf) {
+        free(acf);
+        free(pacf);
+        return HN_ENOMEM;
+    }
+    int rc = diag_acf(x, n, top, acf);
+    if (rc != HN_OK) {
+        free(acf);
+        free(pacf);
+        return rc;
+    }
+    *effect = NAN;
+    if (order >= 1 && diag_pacf(acf, order, pacf) == HN_OK)
+        *effect = diag_predictable_share(pacf, order, n);
+    free(pacf);
+
+    double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt((double)n);
+    size_t used = 0;
+    int count = 0;
+    lags[0] = 0;
+    for (int k = 1; k <= m; k++) {
+        if (fabs(acf[k - 1]) <= band)
+            continue;
+        count++;
+        char item[48];
+        int w = snprintf(item, sizeof item, "%s%d (%.3f)", count > 1 ? ", " : "", k, acf[k - 1]);
+        if (w > 0 && used + (size_t)w + 5 < lagslen) {
+            memcpy(lags + used, item, (size_t)w + 1);
+            used += (size_t)w;
+        } else if (used + 5 < lagslen && strcmp(lags + (used >= 4 ? used - 4 : 0), " ...") != 0) {
+            memcpy(lags + used, " ...", 5);
+            used += 4;
+        }
+    }
+    if (count == 0)
+        snprintf(lags, lagslen, "none");
+    *acf_out = acf;
+    return HN_OK;
+}
+
+/* Ljung-Box (ljung = 1) or Box-Pierce (0). */
+static int portmanteau(const double *x, size_t n, int m, int df_adjust, double alpha,
+                       diag_test *out, int ljung)
+{
+    const char *name = ljung ? "ljung-box" : "box-pierce";
+    char why[160];
+    if (bad_alpha(alpha)) {
+        diag_test_invalid(out, name, DIAG_SERIAL, "alpha must lie strictly between 0 and 1");
+        return HN_EINVAL;
+    }
+    if (n < 3) {
+        diag_test_invalid(out, name, DIAG_SERIAL, "needs at least 3 observations");
+        return HN_ESHORT;
+    }
+    if (m < 1 || (size_t)m > n - 1 || df_adjust < 0) {
+        snprintf(why, sizeof why, "lags m = %d must lie in 1..n-1 = %zu (and p+q >= 0)", m, n - 1);
+        diag_test_invalid(out, name, DIAG_SERIAL, why);
+        return HN_EINVAL;
+    }
+    int df = m - df_adjust;
+    if (df < 1) {
+        snprintf(why, sizeof why,
+                 "df = m - (p+q) = %d - %d = %d < 1: use more lags than fitted ARMA terms",
+                 m, df_adjust, df);
+        diag_test_invalid(out, name, DIAG_SERIAL, why);
+        return HN_EINVAL;
+    }
+    double *acf, effect;
+    char lags[160];
+    int rc = serial_common(x, n, m, alpha, &acf, &effect, lags, sizeof lags);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_SERIAL,
+                          rc == HN_ECONST ? "the values are constant" :
+                          rc == HN_ENOMEM ? "out of memory" : "a value is not finite");
+        return rc == HN_ENOMEM ? HN_ENOMEM : HN_EINVAL;
+    }
+    double dn = (double)n, q = 0.0;
+    /* Sum from the highest lag down: the small terms first. */
+    for (int k = m; k >= 1; k--) {
+        double r2 = acf[k - 1] * acf[k - 1];
+        q += ljung ? r2 / (dn - (double)k) : r2;
+    }
+    q *= ljung ? dn * (dn + 2.0) : dn;
+    free(acf);
+    double p = gsl_cdf_chisq_Q(q, (double)df);
+    fill(out, name, DIAG_SERIAL, q, (double)df, p, alpha);
+    out->effect = effect;
+    out->effect_label = SERIAL_EFFECT;
+    snprintf(out->detail, sizeof out->detail, "%d lags, df %d - %d; lags outside +/-%.3f: %s",
+             m, m, df_adjust, gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt(dn), lags);
+    return HN_OK;
+}
+
+int diag_ljung_box(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out)
+{
+    return portmanteau(x, n, m, df_adjust, alpha, out, 1);
+}
+
+int diag_box_pierce(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out)
+{
+    return portmanteau(x, n, m, df_adjust, alpha, out, 0);
+}
+
+/* Upper tail of Kolmogorov's limiting distribution,
+ * Q(l) = P(sup|B| > l) = 2 sum_{k>=1} (-1)^(k-1) exp(-2 k^2 l^2);
+ * for small l the equivalent theta-function form
+ * P(K <= l) = sqrt(2 pi)/l sum_{k>=1} exp(-(2k-1)^2 pi^2 / (8 l^2))
+ * converges faster (common practice: both series are standard). */
+double diag_kolmogorov_q(double l)
+{
+    if (!(l > 0.0))
+        return 1.0;
+    if (l < 1.0) {
+        double s = 0.0, c = M_PI * M_PI / (8.0 * l * l);
+        for (int k = 1; k <= 20; k++) {
+            double t = exp(-(double)((2 * k - 1) * (2 * k - 1)) * c);
+            s += t;
+            if (t < 1e-18 * s)
+                break;
+        }
+        double cdf = sqrt(2.0 * M_PI) / l * s;
+        return cdf >= 1.0 ? 0.0 : 1.0 - cdf;
+    }
+    double s = 0.0;
+    for (int k = 1; k <= 100; k++) {
+        double t = exp(-2.0 * (double)k * (double)k * l * l);
+        s += (k % 2) ? t : -t;
+        if (t < 1e-18)
+            break;
+    }
+    s *= 2.0;
+    return s < 0.0 ? 0.0 : (s > 1.0 ? 1.0 : s);
+}
+
+/* Bartlett's cumulative periodogram test.
+ * Periodogram I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 at the Fourier
+ * frequencies f_j = j/n, j = 1..q, q = floor((n-1)/2): frequency 0 (the mean,
+ * removed) and, for even n, the Nyquist frequency 1/2 are left out, so every
+ * ordinate is a chi-square(2) under Gaussian white noise.  Then
+ * C_j = sum_{i<=j} I_i / sum_{i<=q} I_i for j = 1..q-1 behave as the order
+ * statistics of q-1 uniforms (common practice), and the Kolmogorov-Smirnov
+ * distance D between them and the uniform distribution function is referred
+ * to Kolmogorov's limiting distribution with Stephens' finite-sample factor
+ * sqrt(M) + 0.12 + 0.11/sqrt(M), M = q-1 (Stephens, M. A. (1970), J. R.
+ * Statist. Soc. B 32, 115-122; factor recalled from memory). */
+int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out)
+{
+    static const char name[] = "cum-periodogram";
+    if (bad_alpha(alpha)) {
+        diag_test_invalid(out, name, DIAG_SERIAL, "alpha must lie strictly between 0 and 1");
+        return HN_EINVAL;
+    }
+    if (n < 7) {
+        diag_test_invalid(out, name, DIAG_SERIAL, "needs at least 7 observations (3 frequencies)");
+        return HN_ESHORT;
+    }
+    size_t q = (n - 1) / 2, M = q - 1;
+    double *d = malloc(n * sizeof *d), *I = malloc(q * sizeof *I);
+    gsl_fft_real_wavetable *wt = gsl_fft_real_wavetable_alloc(n);
+    gsl_fft_real_workspace *ws = gsl_fft_real_workspace_alloc(n);
+    int rc = HN_OK;
+    if (!d || !I || !wt || !ws) {
+        rc = HN_ENOMEM;
+        diag_test_invalid(out, name, DIAG_SERIAL, "out of memory");
+        goto done;
+    }
+    if (diag_center(x, n, d) != HN_OK) {
+        rc = HN_EINVAL;
+        diag_test_invalid(out, name, DIAG_SERIAL, "a value is not finite");
+        goto done;
+    }
+    if (gsl_fft_real_transform(d, 1, n, wt, ws) != 0) {
+        rc = HN_EINVAL;
+        diag_test_invalid(out, name, DIAG_SERIAL, "the Fourier transform failed");
+        goto done;
+    }
+    /* Mixed-radix half-complex layout: Re X_j = d[2j-1], Im X_j = d[2j]. */
+    double total = 0.0, comp = 0.0;
+    for (size_t j = 1; j <= q; j++) {
+        double re = d[2 * j - 1], im = d[2 * j];
+        I[j - 1] = re * re + im * im;
+        double y = I[j - 1] - comp, t = total + y;
+        comp = (t - total) - y;
+        total = t;
+    }
+    if (!(total > 0.0) || !isfinite(total)) {
+        rc = HN_EINVAL;
+        diag_test_invalid(out, name, DIAG_SERIAL, "the values are constant");
+        goto done;
+    }
+    double cum = 0.0, D = 0.0, worst_c = 0.0;
+    size_t worst_j = 1;
+    for (size_t j = 1; j <= M; j++) {
+        cum += I[j - 1];
+        double c = cum / total;
+        double dplus = (double)j / (double)M - c, dminus = c - (double)(j - 1) / (double)M;
+        double dj = dplus > dminus ? dplus : dminus;
+        if (dj > D) {
+            D = dj;
+            worst_j = j;
+            worst_c = c;
+        }
+    }
+    double sm = sqrt((double)M);
+    double lambda = (sm + 0.12 + 0.11 / sm) * D;
+    double p = diag_kolmogorov_q(lambda);
+    fill(out, name, DIAG_SERIAL, D, NAN, p, alpha);
+    snprintf(out->detail, sizeof out->detail,
+             "KS distance %.4f over %zu frequencies j/n, j = 1..%zu; largest near frequency %zu/%zu "
+             "(period %.1f), cumulative share %.3f against uniform %.3f",
+             D, q, q, worst_j, n, (double)n / (double)worst_j, worst_c, (double)worst_j / (double)M);
+    /* Practical size as for the portmanteau tests. */
+    {
+        int order = diag_share_order(n);
+        double *acf = malloc((size_t)(order > 0 ? order : 1) * sizeof *acf);
+        double *pacf = malloc((size_t)(order > 0 ? order : 1) * sizeof *pacf);
+        if (acf && pacf && order >= 1 && diag_acf(x, n, order, acf) == HN_OK &&
+            diag_pacf(acf, order, pacf) == HN_OK) {
+            out->effect = diag_predictable_share(pacf, order, n);
+            out->effect_label = SERIAL_EFFECT;
+        }
+        free(acf);
+        free(pacf);
+    }
+done:
+    free(d);
+    free(I);
+    if (wt)
+        gsl_fft_real_wavetable_free(wt);
+    if (ws)
+        gsl_fft_real_workspace_free(ws);
+    return rc;
+}

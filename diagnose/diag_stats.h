@@ -1,0 +1,69 @@
+/* diag_stats.h - accurate summary statistics, autocorrelations and partial autocorrelations.
+ *
+ * Conventions (common practice; the NIST StRD univariate pages use the same
+ * estimator): mean and standard deviation with divisor n-1; the
+ * autocorrelation at lag k is
+ *     r_k = sum_{t=k+1..n} (x_t - xbar)(x_{t-k} - xbar) / sum_t (x_t - xbar)^2,
+ * i.e. divisor n in both autocovariances and the mean removed.
+ * Every array index 0 holds lag 1. */
+#ifndef DIAG_STATS_H
+#define DIAG_STATS_H
+
+#include <stddef.h>
+
+/* Mean and standard deviation (divisor n-1) of X[0..n-1].  The mean is found
+ * to about double-double accuracy (compensated sum, then a second
+ * compensated pass over the deviations that corrects it), and the sum of
+ * squares is a compensated sum of those corrected deviations.  SD may be
+ * NULL.  Returns HN_OK; HN_ESHORT when n < 1 (n < 2 when SD is wanted);
+ * HN_ENUMERIC when a value is not finite. */
+int diag_mean_sd(const double *x, size_t n, double *mean, double *sd);
+
+/* Deviations from the mean, D[i] = x_i - xbar, written to D[0..n-1] (caller
+ * allocates; D may equal X).  The mean is removed in two parts (a rounded
+ * mean, then the small correction) so that the deviations are as accurate
+ * as the data allow even when |xbar| >> sd.  Returns HN_OK, HN_ESHORT when
+ * n < 1, HN_ENUMERIC for a non-finite value. */
+int diag_center(const double *x, size_t n, double *d);
+
+/* Autocorrelations r_1..r_maxlag of X into ACF[0..maxlag-1] (caller
+ * allocates maxlag doubles).  diag_acf chooses the method by cost:
+ * the direct sum when (maxlag + 1) <= 3 log2(N), N the FFT length below,
+ * otherwise the FFT.  Both work on the accurately centred series; the two
+ * agree to about 1e-14 in practice.
+ * Returns HN_OK; HN_EINVAL when maxlag < 1 or maxlag > n - 1; HN_ESHORT when
+ * n < 2; HN_ECONST when the values are all equal; HN_ENOMEM; HN_ENUMERIC. */
+int diag_acf(const double *x, size_t n, int maxlag, double *acf);
+/* Direct lagged products with compensated sums: O(n maxlag). */
+int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf);
+/* GSL radix-2 real FFT of the centred series zero-padded to the power of two
+ * N >= 2n (so no circular wrap-around), inverse of the power spectrum:
+ * O(N log N).  The lag-0 sum of squares is the compensated direct sum. */
+int diag_acf_fft(const double *x, size_t n, int maxlag, double *acf);
+
+/* Partial autocorrelations phi_11..phi_mm (m = MAXLAG) from ACF[0..m-1] by
+ * the Durbin-Levinson recursion, into PACF[0..m-1] (caller allocates).
+ * Returns HN_OK; HN_EINVAL for maxlag < 1; HN_ENUMERIC when the recursion
+ * meets a prediction-error ratio <= 0 (the ACF is not positive definite);
+ * HN_ENOMEM. */
+int diag_pacf(const double *acf, int maxlag, double *pacf);
+
+/* Practical size of serial dependence: the share of variance that the best
+ * linear predictor from ORDER past values removes, 1 - prod_{k<=ORDER}
+ * (1 - pacf_k^2), computed from PACF[0..order-1].  With N_OBS > order + 1
+ * the share is adjusted for the order like an adjusted R^2 (so that its
+ * expectation under white noise is about zero):
+ *     1 - (1 - share) (N_OBS - 1) / (N_OBS - ORDER - 1),  clipped at 0;
+ * pass N_OBS = 0 for the raw share.  Returns NAN for order < 1. */
+double diag_predictable_share(const double *pacf, int order, size_t n_obs);
+
+/* The long-autoregression order the battery uses for that share:
+ * min(20, n/10), at least 1 and at most n - 2 (0 when n < 3). */
+int diag_share_order(size_t n);
+
+/* Upper tail of Kolmogorov's limiting distribution of sqrt(n) D_n:
+ * Q(l) = 2 sum_{k>=1} (-1)^(k-1) exp(-2 k^2 l^2), 1 for l <= 0.  Used for
+ * the cumulative periodogram bound (defined in diag_portmanteau.c). */
+double diag_kolmogorov_q(double l);
+
+#endif
