@@ -31,15 +31,16 @@ all: hone
 
 $(BUILD)/%.o: %.c $(wildcard fit/*.h diagnose/*.h shell/*.h) Makefile
 	@mkdir -p $(dir $@)
-	$(CC) $(ALL_CFLAGS) -DHONE_VERSION='"$(VERSION)"' -c -o $@ $<
+	@echo "  CC   $<"
+	@$(CC) $(ALL_CFLAGS) -DHONE_VERSION='"$(VERSION)"' -c -o $@ $<
 
 $(BUILD)/libhone.a: $(LIB_OBJ)
 	@rm -f $@
-	ar rcs $@ $^
+	@ar rcs $@ $^
 
 $(BUILD)/libhoneshell.a: $(SH_OBJ)
 	@rm -f $@
-	ar rcs $@ $^
+	@ar rcs $@ $^
 
 hone: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
 	$(CC) $(ALL_CFLAGS) -o $@ $^ $(LDLIBS)

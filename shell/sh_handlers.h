@@ -1,0 +1,13 @@
+/* sh_handlers.h - command groups: each shell/sh_cmd_*.c file exports one
+ * table of commands, terminated by an entry with a NULL name; sh_cmd.c
+ * joins them in the order listed in its group list. */
+#ifndef SH_HANDLERS_H
+#define SH_HANDLERS_H
+
+#include "sh_cmd.h"
+
+extern const sh_command sh_cmds_data[];     /* load, series, transform */
+extern const sh_command sh_cmds_model[];    /* fit, check, models, use */
+extern const sh_command sh_cmds_misc[];     /* set, help, quit */
+
+#endif
