@@ -1,0 +1,60 @@
+/* fit_arma.h - conditional-sum-of-squares ARMA: residuals, derivatives, starts (internal to fit/). */
+#ifndef FIT_ARMA_H
+#define FIT_ARMA_H
+
+#include <stddef.h>
+#include "fit.h"
+
+/* Mean parameters of SPEC: mu (if spec->mean), ar at each lag, ma at each
+ * lag -- the first fit_arma_nmean(spec) entries of every parameter vector. */
+int fit_arma_nmean(const fit_spec *spec);
+
+/* Workspace for fit_arma_resid: a ring of the last (max MA lag + 1) residuals
+ * and their derivatives, sized once per spec so the residual pass allocates
+ * nothing.  Returns NULL when out of memory; release with fit_arma_ws_free. */
+typedef struct fit_arma_ws fit_arma_ws;
+fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec);
+void fit_arma_ws_free(fit_arma_ws *w);
+
+/* Residuals of the mean model at the mean parameters MPAR (fit_arma_nmean
+ * values) on Y[0..n-1], under the conventions of fit.h: with p = max AR lag,
+ *   e_t = (y_t - mu) - sum_i ar_i (y_{t-l_i} - mu) - sum_j ma_j e_{t-m_j},
+ * t = p .. n-1, and e_s = 0 for s < p (pre-sample shocks zero).
+ *   E    (may be NULL)  receives the N = n - p residuals, E[t - p] = e_t.
+ *   DE   (may be NULL)  receives de_t/dtheta, row-major N x nmean,
+ *                       DE[(t - p) * nmean + k], by the derivative recursions
+ *                       de_t/dth = (direct term) - sum_j ma_j de_{t-m_j}/dth.
+ *   SSR  (may be NULL)  receives sum e_t^2 (compensated summation).
+ *   GSUM (may be NULL)  receives sum_t e_t de_t/dtheta (nmean values), i.e.
+ *                       half the gradient of SSR.
+ * All arrays are caller-owned.  Returns HN_OK, HN_EINVAL (n <= p, NULL
+ * arguments) or HN_EDOMAIN (a non-finite residual: the MA recursion
+ * exploded or the data hold non-finite values). */
+int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                   double *e, double *de, double *ssr, double *gsum);
+
+/* Hannan-Rissanen start for the mean parameters of SPEC on Y[0..n-1],
+ * written to MPAR (fit_arma_nmean values):
+ *   pure AR (or arma(0,0)): least squares of y_t on (1, y_{t-l_i}) over
+ *     t = p .. n-1, which is the conditional LS optimum itself, with
+ *     mu = intercept / (1 - sum ar);
+ *   with MA terms: a long autoregression of order m (m = max(2 max(p, q),
+ *     min(ceil(10 log10 n), 40)), at most 400) by least squares gives
+ *     residuals ehat; then y_t is regressed on (1, y_{t-l_i}, ehat_{t-m_j}).
+ *     For n > 20000 both regressions use the last 20000 observations only
+ *     (the optimiser then finishes on the whole series).
+ * MA coefficients are shrunk towards zero when the start is non-invertible,
+ * so the residual recursion stays bounded.  Least squares by LAPACKE_dgels;
+ * a degenerate design falls back to zero coefficients at the sample mean.
+ * Returns HN_OK, HN_EINVAL, HN_ESHORT, HN_ENOMEM. */
+int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar);
+
+/* The whole conditional-LS ARMA fit of a spec without GARCH part: fills
+ * *RES (fit.h) including standard errors from the profile likelihood in the
+ * mean parameters (sigma2 concentrated out), criteria with k = np + 1, roots,
+ * residuals and warnings.  Input checks (length, constant series) are the
+ * caller's (fit_model).  Returns as fit_model. */
+int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
+                      const fit_options *opt, fit_result *res);
+
+#endif
