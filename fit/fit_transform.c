@@ -1,0 +1,142 @@
+/* fit_transform.c - log, differences, demeaning and Box-Cox on double arrays. */
+#include "fit_transform.h"
+
+#include "hn_status.h"
+
+#include <math.h>
+
+static int check_finite(const double *y, size_t n, size_t *bad)
+{
+    for (size_t i = 0; i < n; i++)
+        if (!isfinite(y[i])) {
+            if (bad)
+                *bad = i;
+            return HN_EINVAL;
+        }
+    return HN_OK;
+}
+
+int fit_tr_mean(const double *y, size_t n, double *mean, size_t *bad)
+{
+    if (!y || !mean)
+        return HN_EINVAL;
+    if (n == 0)
+        return HN_ESHORT;
+    int rc = check_finite(y, n, bad);
+    if (rc != HN_OK)
+        return rc;
+    /* Neumaier's compensated sum */
+    double s = 0.0, c = 0.0;
+    for (size_t i = 0; i < n; i++) {
+        double t = s + y[i];
+        if (fabs(s) >= fabs(y[i]))
+            c += (s - t) + y[i];
+        else
+            c += (y[i] - t) + s;
+        s = t;
+    }
+    double m = (s + c) / (double)n;
+    if (!isfinite(m)) {
+        /* the sum overflowed: average scaled values instead */
+        m = 0.0;
+        for (size_t i = 0; i < n; i++)
+            m += y[i] / (double)n;
+    }
+    /* second pass: the residuals about m sum to n times the error of m */
+    double r = 0.0;
+    c = 0.0;
+    for (size_t i = 0; i < n; i++) {
+        double d = y[i] - m;
+        double t = r + d;
+        if (fabs(r) >= fabs(d))
+            c += (r - t) + d;
+        else
+            c += (d - t) + r;
+        r = t;
+    }
+    *mean = m + (r + c) / (double)n;
+    return HN_OK;
+}
+
+int fit_tr_log(const double *y, size_t n, double *out, size_t *bad)
+{
+    if ((!y || !out) && n)
+        return HN_EINVAL;
+    int rc = check_finite(y, n, bad);
+    if (rc != HN_OK)
+        return rc;
+    for (size_t i = 0; i < n; i++)
+        if (!(y[i] > 0.0)) {
+            if (bad)
+                *bad = i;
+            return HN_EDOMAIN;
+        }
+    for (size_t i = 0; i < n; i++)
+        out[i] = log(y[i]);
+    return HN_OK;
+}
+
+int fit_tr_diff(const double *y, size_t n, size_t k, double *out, size_t *n_out, size_t *bad)
+{
+    if (!y || !out || !n_out || k == 0)
+        return HN_EINVAL;
+    if (n <= k)
+        return HN_ESHORT;
+    int rc = check_finite(y, n, bad);
+    if (rc != HN_OK)
+        return rc;
+    /* forward order keeps in-place use safe: Y[i] is read before OUT[i] is written,
+     * and later steps read only Y[j], j > i */
+    for (size_t i = 0; i + k < n; i++)
+        out[i] = y[i + k] - y[i];
+    *n_out = n - k;
+    return HN_OK;
+}
+
+int fit_tr_sdiff(const double *y, size_t n, size_t s, double *out, size_t *n_out, size_t *bad)
+{
+    return fit_tr_diff(y, n, s, out, n_out, bad);
+}
+
+int fit_tr_demean(const double *y, size_t n, double *out, double *mean, size_t *bad)
+{
+    double m;
+    if (!out)
+        return HN_EINVAL;
+    int rc = fit_tr_mean(y, n, &m, bad);
+    if (rc != HN_OK)
+        return rc;
+    for (size_t i = 0; i < n; i++)
+        out[i] = y[i] - m;
+    if (mean)
+        *mean = m;
+    return HN_OK;
+}
+
+int fit_tr_boxcox(const double *y, size_t n, double lambda, double *out, size_t *bad)
+{
+    if ((!y || !out) && n)
+        return HN_EINVAL;
+    if (!isfinite(lambda))
+        return HN_EINVAL;
+    int rc = check_finite(y, n, bad);
+    if (rc != HN_OK)
+        return rc;
+    for (size_t i = 0; i < n; i++)
+        if (!(y[i] > 0.0)) {
+            if (bad)
+                *bad = i;
+            return HN_EDOMAIN;
+        }
+    for (size_t i = 0; i < n; i++) {
+        double l = log(y[i]);
+        double v = lambda == 0.0 ? l : expm1(lambda * l) / lambda;
+        if (!isfinite(v)) {
+            if (bad)
+                *bad = i;
+            return HN_ENUMERIC;
+        }
+        out[i] = v;
+    }
+    return HN_OK;
+}

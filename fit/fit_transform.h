@@ -1,0 +1,46 @@
+/* fit_transform.h - pure transforms of a series held in a double array. */
+#ifndef FIT_TRANSFORM_H
+#define FIT_TRANSFORM_H
+
+#include <stddef.h>
+
+/* Conventions for every function here:
+ *  - Y holds N input values; OUT is a caller-owned buffer of at least N
+ *    doubles and may be the same array as Y (in-place use is safe).
+ *  - Nothing is allocated; nothing is printed.
+ *  - Returns HN_OK or an hn_status code; on error OUT is unspecified.
+ *  - Inputs must be finite: a NaN or infinite value gives HN_EINVAL and,
+ *    when BAD is not NULL, its 0-based index in *BAD. */
+
+/* Mean of Y[0..N-1], accurate to about one rounding: compensated
+ * (Neumaier) sum, then a second pass adding the mean residual.  Returns HN_OK
+ * and *MEAN, HN_ESHORT when N is 0, HN_EINVAL for non-finite values. */
+int fit_tr_mean(const double *y, size_t n, double *mean, size_t *bad);
+
+/* OUT[i] = log(Y[i]), same length.  A value <= 0 gives HN_EDOMAIN with the
+ * index of the first such value in *BAD (may be NULL). */
+int fit_tr_log(const double *y, size_t n, double *out, size_t *bad);
+
+/* Difference at lag K >= 1: OUT[i] = Y[i+K] - Y[i] for i = 0..N-K-1, so the
+ * first K values are lost (OUT[i] belongs to the time of Y[i+K]).  Stores
+ * the new length N-K in *N_OUT.  HN_EINVAL when K is 0, HN_ESHORT when
+ * N <= K. */
+int fit_tr_diff(const double *y, size_t n, size_t k, double *out, size_t *n_out, size_t *bad);
+
+/* Seasonal difference at period S >= 1: the same arithmetic as fit_tr_diff
+ * at lag S (kept apart so that a transform history can say which one was
+ * meant).  Same returns. */
+int fit_tr_sdiff(const double *y, size_t n, size_t s, double *out, size_t *n_out, size_t *bad);
+
+/* OUT[i] = Y[i] - mean(Y) with the mean of fit_tr_mean, stored in *MEAN
+ * (may be NULL).  HN_ESHORT when N is 0. */
+int fit_tr_demean(const double *y, size_t n, double *out, double *mean, size_t *bad);
+
+/* Box-Cox transform: OUT[i] = (Y[i]^LAMBDA - 1) / LAMBDA, and log(Y[i]) at
+ * LAMBDA = 0 (evaluated as expm1(LAMBDA log y) / LAMBDA, accurate for
+ * small LAMBDA).  A value <= 0 gives HN_EDOMAIN with its index in *BAD; a
+ * non-finite LAMBDA gives HN_EINVAL; a result that overflows gives
+ * HN_ENUMERIC with its index. */
+int fit_tr_boxcox(const double *y, size_t n, double lambda, double *out, size_t *bad);
+
+#endif
