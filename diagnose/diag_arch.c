@@ -1,0 +1,204 @@
+/* diag_arch.c - volatility clustering: McLeod-Li on squares and Engle's ARCH-LM. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+
+#include <gsl/gsl_cdf.h>
+#include <lapacke.h>
+
+#include "diag_checks.h"
+#include "diag_stats.h"
+#include "hn_status.h"
+
+static void fill(diag_test *t, const char *name, double stat, double df, double p,
+                 double alpha, double effect, const char *effect_label)
+{
+    t->name = name;
+    t->criterion = DIAG_VOLATILITY;
+    t->valid = 1;
+    t->statistic = stat;
+    t->df = df;
+    t->p = p;
+    t->pass = p >= alpha;
+    t->effect = effect;
+    t->effect_label = effect_label;
+    t->detail[0] = '\0';
+}
+
+/* Squares of the series as given (SQ: n values, caller allocates); the
+ * checks run on residuals, and a mean away from zero is the mean check's
+ * business.  HN_ENUMERIC when a value is not finite. */
+static int squares(const double *x, size_t n, double *sq)
+{
+    for (size_t i = 0; i < n; i++) {
+        if (!isfinite(x[i]))
+            return HN_ENUMERIC;
+        sq[i] = x[i] * x[i];
+    }
+    return HN_OK;
+}
+
+/* McLeod-Li test: the Ljung-Box statistic of the squared series,
+ * Q = n (n+2) sum_{k=1..m} r_k^2 / (n-k), r_k the autocorrelations of x^2
+ * (diag_acf convention), referred to chi-square with m degrees of
+ * freedom (no adjustment for ARMA terms; McLeod and Li 1983, cited from memory).  OUT->effect is
+ * the largest |r_k|, detail lists the lags whose |r_k| exceeds
+ * z_{1-alpha/2}/sqrt(n).  Returns HN_OK; HN_EINVAL (m < 1, no data, bad
+ * alpha); HN_ESHORT (n < m + 2); HN_ECONST (squares all equal); HN_ENOMEM;
+ * HN_ENUMERIC.  OUT is marked invalid on failure. */
+int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *out)
+{
+    const char *name = "mcleod-li";
+    if (!x || m < 1 || !(alpha > 0.0 && alpha < 1.0)) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "needs data, m >= 1 and 0 < alpha < 1");
+        return HN_EINVAL;
+    }
+    if (n < (size_t)m + 2) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "too few observations for the lags asked");
+        return HN_ESHORT;
+    }
+    double *sq = malloc(n * sizeof *sq);
+    double *r = malloc((size_t)m * sizeof *r);
+    if (!sq || !r) {
+        free(sq);
+        free(r);
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "out of memory");
+        return HN_ENOMEM;
+    }
+    int rc = squares(x, n, sq);
+    if (rc == HN_OK)
+        rc = diag_acf(sq, n, m, r);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY,
+                          rc == HN_ECONST ? "the squared values are all equal"
+                                          : "autocorrelations of the squares not computable");
+        free(sq);
+        free(r);
+        return rc;
+    }
+    double dn = (double)n, q = 0.0, c = 0.0, big = 0.0;
+    for (int k = 1; k <= m; k++) {
+        /* compensated sum of the terms */
+        double term = r[k - 1] * r[k - 1] / (dn - k);
+        double y = term - c, t = q + y;
+        c = (t - q) - y;
+        q = t;
+        if (fabs(r[k - 1]) > big)
+            big = fabs(r[k - 1]);
+    }
+    q *= dn * (dn + 2.0);
+    fill(out, name, q, (double)m, gsl_cdf_chisq_Q(q, (double)m), alpha, big,
+         "largest |autocorrelation| of the squares");
+
+    double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt(dn);
+    int len = snprintf(out->detail, sizeof out->detail, "lags of x^2 beyond +/-%.3g:", band);
+    int any = 0;
+    for (int k = 1; k <= m && len > 0 && (size_t)len < sizeof out->detail - 16; k++) {
+        if (fabs(r[k - 1]) > band) {
+            len += snprintf(out->detail + len, sizeof out->detail - (size_t)len, " %d (%.3f)", k, r[k - 1]);
+            any = 1;
+        }
+    }
+    if (!any)
+        snprintf(out->detail, sizeof out->detail, "no lag of x^2 beyond +/-%.3g", band);
+    free(sq);
+    free(r);
+    return HN_OK;
+}
+
+/* Engle's ARCH-LM test.  With y_t = x_t^2, the
+ * regression y_t = a_0 + a_1 y_{t-1} + ... + a_q y_{t-q} + u_t over
+ * t = q..n-1 (n - q rows) is solved by least squares (LAPACKE_dgels, QR);
+ * R^2 = 1 - SSR/SST with SST about the mean of the regressand and SSR from
+ * the residuals recomputed from the coefficients.  Statistic (n-q) R^2,
+ * chi-square with q degrees of freedom; OUT->effect is R^2.  Returns HN_OK;
+ * HN_EINVAL; HN_ESHORT (n < 2q + 3);
+ * HN_ECONST (regressand constant); HN_ESINGULAR (rank-deficient lags);
+ * HN_ENOMEM; HN_ENUMERIC.  OUT is marked invalid on failure. */
+int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
+{
+    const char *name = "arch-lm";
+    if (!x || q < 1 || !(alpha > 0.0 && alpha < 1.0)) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "needs data, q >= 1 and 0 < alpha < 1");
+        return HN_EINVAL;
+    }
+    size_t uq = (size_t)q;
+    if (n < 2 * uq + 3) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "too few observations for the lags asked");
+        return HN_ESHORT;
+    }
+    size_t rows = n - uq, cols = uq + 1;
+    double *sq = malloc(n * sizeof *sq);
+    double *a = malloc(rows * cols * sizeof *a);
+    double *b = malloc(rows * sizeof *b);
+    if (!sq || !a || !b) {
+        free(sq);
+        free(a);
+        free(b);
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "out of memory");
+        return HN_ENOMEM;
+    }
+    int rc = squares(x, n, sq);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "the squares are not computable");
+        goto done;
+    }
+    /* regressand mean and total sum of squares (two passes) */
+    double ym = 0.0, yc = 0.0, sst = 0.0;
+    for (size_t t = uq; t < n; t++)
+        ym += sq[t];
+    ym /= (double)rows;
+    for (size_t t = uq; t < n; t++)
+        yc += sq[t] - ym;
+    ym += yc / (double)rows;
+    for (size_t t = uq; t < n; t++)
+        sst += (sq[t] - ym) * (sq[t] - ym);
+    if (!(sst > 0.0)) {
+        rc = HN_ECONST;
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "the squared values are constant");
+        goto done;
+    }
+    for (size_t i = 0; i < rows; i++) {
+        size_t t = i + uq;
+        a[i * cols] = 1.0;
+        for (size_t j = 1; j <= uq; j++)
+            a[i * cols + j] = sq[t - j];
+        b[i] = sq[t];
+    }
+    lapack_int info = LAPACKE_dgels(LAPACK_ROW_MAJOR, 'N', (lapack_int)rows, (lapack_int)cols, 1,
+                                    a, (lapack_int)cols, b, 1);
+    if (info != 0) {
+        rc = info < 0 ? HN_EINVAL : HN_ESINGULAR;
+        diag_test_invalid(out, name, DIAG_VOLATILITY,
+                          info < 0 ? "least squares refused its arguments"
+                                   : "the lagged squares are collinear");
+        goto done;
+    }
+    double ssr = 0.0;
+    for (size_t i = 0; i < rows; i++) {
+        size_t t = i + uq;
+        double fit = b[0];
+        for (size_t j = 1; j <= uq; j++)
+            fit += b[j] * sq[t - j];
+        double e = sq[t] - fit;
+        ssr += e * e;
+    }
+    double r2 = 1.0 - ssr / sst;
+    if (r2 < 0.0)
+        r2 = 0.0;
+    if (!isfinite(r2)) {
+        rc = HN_ENUMERIC;
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "a non-finite value arose");
+        goto done;
+    }
+    double stat = (double)rows * r2;
+    fill(out, name, stat, (double)q, gsl_cdf_chisq_Q(stat, (double)q), alpha, r2,
+         "share of the variance of x^2 predicted by its lags (R^2)");
+    snprintf(out->detail, sizeof out->detail,
+             "x^2 on %d lags of itself and a constant, %zu rows; lag-1 coefficient %.3g", q, rows, b[1]);
+done:
+    free(sq);
+    free(a);
+    free(b);
+    return rc;
+}

@@ -1,0 +1,414 @@
+/* diag_variance.c - constant variance over time: block ANOVA, Brown-Forsythe, rolling mean/sd. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_cdf.h>
+
+#include "diag_checks.h"
+#include "hn_status.h"
+
+/* Numerics.  Every sum of squares is taken about a centre computed first
+ * (two passes), and all data are shifted by their first value before that,
+ * so that data with a large common offset (NIST StRD SmLs07: 1e12 + 0.x)
+ * keep the digits of their differences.  Each two-pass mean adds the mean of
+ * the first-pass deviations as a correction. */
+
+static int cmp_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Median of X[0..n-1] using SCRATCH (n doubles) for the sorted copy. */
+static double median_of(const double *x, size_t n, double *scratch)
+{
+    memcpy(scratch, x, n * sizeof *x);
+    qsort(scratch, n, sizeof *scratch, cmp_double);
+    return n % 2 ? scratch[n / 2] : 0.5 * (scratch[n / 2 - 1] + scratch[n / 2]);
+}
+
+/* Two-pass mean of X[0..n-1] (n > 0). */
+static double mean_of(const double *x, size_t n)
+{
+    double s = 0.0, c = 0.0;
+    for (size_t i = 0; i < n; i++)
+        s += x[i];
+    double m = s / (double)n;
+    for (size_t i = 0; i < n; i++)
+        c += x[i] - m;
+    return m + c / (double)n;
+}
+
+/* One-way ANOVA sums on D (already shifted), groups of SIZES.  Fills the
+ * between and within sums of squares.  Requires every size > 0. */
+static void anova_sums(const double *d, const size_t *sizes, size_t k,
+                       double *ssb, double *ssw)
+{
+    size_t ntot = 0;
+    for (size_t g = 0; g < k; g++)
+        ntot += sizes[g];
+    double grand = mean_of(d, ntot);
+    double b = 0.0, w = 0.0;
+    const double *p = d;
+    for (size_t g = 0; g < k; g++) {
+        double m = mean_of(p, sizes[g]);
+        double dm = m - grand;
+        b += (double)sizes[g] * dm * dm;
+        for (size_t i = 0; i < sizes[g]; i++) {
+            double e = p[i] - m;
+            w += e * e;
+        }
+        p += sizes[g];
+    }
+    *ssb = b;
+    *ssw = w;
+}
+
+/* F test from the sums; returns HN_ECONST when the within sum is zero. */
+static int f_from_sums(double ssb, double ssw, size_t ntot, size_t k,
+                       double *F, double *df1, double *df2, double *p)
+{
+    double d1 = (double)(k - 1), d2 = (double)(ntot - k);
+    *df1 = d1;
+    *df2 = d2;
+    if (!(ssw > 0.0)) {
+        *F = NAN;
+        *p = NAN;
+        return HN_ECONST;
+    }
+    *F = (ssb / d1) / (ssw / d2);
+    *p = gsl_cdf_fdist_Q(*F, d1, d2);
+    return HN_OK;
+}
+
+static int check_groups(const size_t *sizes, size_t k, size_t min_size, size_t *ntot)
+{
+    size_t t = 0;
+    if (!sizes || k < 2)
+        return HN_EINVAL;
+    for (size_t g = 0; g < k; g++) {
+        if (sizes[g] < min_size)
+            return HN_ESHORT;
+        t += sizes[g];
+    }
+    if (t <= k)
+        return HN_ESHORT;
+    *ntot = t;
+    return HN_OK;
+}
+
+/* Shifted copy of X: d_i = x_i - x_0 (malloc'd; NULL on failure). */
+static double *shifted_copy(const double *x, size_t n)
+{
+    double *d = malloc(n * sizeof *d);
+    if (!d)
+        return NULL;
+    for (size_t i = 0; i < n; i++)
+        d[i] = x[i] - x[0];
+    return d;
+}
+
+/* One-way ANOVA F test of equal group means.
+ *   x: the groups one after another; sizes[g] > 0 observations in group g,
+ *   ngroups >= 2, total > ngroups.  Outputs F = MSB/MSW, df1 = k-1,
+ *   df2 = N-k, p = upper tail of F(df1, df2).  Returns HN_OK, HN_EINVAL,
+ *   HN_ESHORT, HN_ECONST (all groups constant: F undefined) or HN_ENOMEM.
+ *   Nothing is kept; outputs are NAN on failure. */
+int diag_anova_groups(const double *x, const size_t *sizes, size_t ngroups,
+                      double *F, double *df1, double *df2, double *p)
+{
+    size_t ntot = 0;
+    *F = *df1 = *df2 = *p = NAN;
+    if (!x)
+        return HN_EINVAL;
+    int rc = check_groups(sizes, ngroups, 1, &ntot);
+    if (rc != HN_OK)
+        return rc;
+    double *d = shifted_copy(x, ntot);
+    if (!d)
+        return HN_ENOMEM;
+    double ssb, ssw;
+    anova_sums(d, sizes, ngroups, &ssb, &ssw);
+    free(d);
+    return f_from_sums(ssb, ssw, ntot, ngroups, F, df1, df2, p);
+}
+
+/* Absolute deviations from each group's median (or mean): Z (N doubles). */
+static int abs_deviations(const double *d, const size_t *sizes, size_t k,
+                          int median_centred, double *z, double *scratch)
+{
+    const double *p = d;
+    double *q = z;
+    for (size_t g = 0; g < k; g++) {
+        double c = median_centred ? median_of(p, sizes[g], scratch) : mean_of(p, sizes[g]);
+        for (size_t i = 0; i < sizes[g]; i++)
+            q[i] = fabs(p[i] - c);
+        p += sizes[g];
+        q += sizes[g];
+    }
+    return HN_OK;
+}
+
+/* Levene's test of equal group variances: one-way ANOVA on |x - centre_g|,
+ * centre the group median (MEDIAN_CENTRED != 0: the Brown-Forsythe variant)
+ * or the group mean.  Arguments and returns as diag_anova_groups, with
+ * W the F statistic of the deviations. */
+int diag_levene_groups(const double *x, const size_t *sizes, size_t ngroups, int median_centred,
+                       double *W, double *df1, double *df2, double *p)
+{
+    size_t ntot = 0;
+    *W = *df1 = *df2 = *p = NAN;
+    if (!x)
+        return HN_EINVAL;
+    int rc = check_groups(sizes, ngroups, 1, &ntot);
+    if (rc != HN_OK)
+        return rc;
+    double *d = shifted_copy(x, ntot);
+    double *z = malloc(2 * ntot * sizeof *z);
+    if (!d || !z) {
+        free(d);
+        free(z);
+        return HN_ENOMEM;
+    }
+    abs_deviations(d, sizes, ngroups, median_centred, z, z + ntot);
+    double ssb, ssw;
+    anova_sums(z, sizes, ngroups, &ssb, &ssw);
+    free(d);
+    free(z);
+    return f_from_sums(ssb, ssw, ntot, ngroups, W, df1, df2, p);
+}
+
+/* ---- consecutive blocks ---- */
+
+/* Sizes of NB consecutive blocks of N: floor(N/NB) each, the first N % NB
+ * blocks one larger. */
+static void block_sizes(size_t n, size_t nb, size_t *sizes)
+{
+    size_t base = n / nb, extra = n % nb;
+    for (size_t b = 0; b < nb; b++)
+        sizes[b] = base + (b < extra ? 1 : 0);
+}
+
+/* Append "; " + TEXT to BUF (size CAP), ending with "..." if it does not fit. */
+static void append(char *buf, size_t cap, const char *text)
+{
+    size_t len = strlen(buf);
+    size_t need = strlen(text) + (len ? 2 : 0);
+    if (len + need + 4 > cap) {
+        if (len + 4 <= cap && (len < 3 || strcmp(buf + len - 3, "...") != 0))
+            strcat(buf, "...");
+        return;
+    }
+    if (len)
+        strcat(buf, "; ");
+    strcat(buf, text);
+}
+
+/* Blocks whose mean (WHICH = 0) or sd (WHICH = 1) stands out, in words,
+ * into DETAIL.  The global reference is taken robustly, so that one deviant
+ * block does not make every other block look deviant: the median of the
+ * block means and the median of the block sds.  Rule, Bonferroni over the
+ * NB blocks at ALPHA:
+ *   mean: |mean_b - median of block means| > z_{1-alpha/(2 NB)} s_w / sqrt(n_b),
+ *         s_w the pooled within-block sd;
+ *   sd:   (n_b - 1) s_b^2 / s_med^2 outside the chi-square(n_b - 1) quantiles
+ *         alpha/(2 NB) and 1 - alpha/(2 NB), s_med the median block sd.
+ * SCRATCH holds 3 NB doubles. */
+static void describe_blocks(const double *d, const size_t *sizes, size_t nb, size_t n,
+                            double alpha, int which, char *detail, size_t cap, double *scratch)
+{
+    double *bm = scratch, *bs = scratch + nb, *tmp = scratch + 2 * nb;
+    double ssw = 0.0;
+    size_t start = 0;
+    for (size_t b = 0; b < nb; b++) {
+        const double *p = d + start;
+        size_t m = sizes[b];
+        double v = 0.0;
+        bm[b] = mean_of(p, m);
+        for (size_t i = 0; i < m; i++)
+            v += (p[i] - bm[b]) * (p[i] - bm[b]);
+        ssw += v;
+        bs[b] = sqrt(v / (double)(m - 1));
+        start += m;
+    }
+    double sw = sqrt(ssw / (double)(n - nb));
+    double mref = median_of(bm, nb, tmp), sref = median_of(bs, nb, tmp);
+    double a = alpha / (2.0 * (double)nb);
+    const char *rule = which == 0
+        ? "|block mean - median block mean| > z*pooled sd/sqrt(block n)"
+        : "block variance outside chi-square band about the median block sd";
+    char list[256] = "";
+    size_t flagged = 0;
+    start = 0;
+    for (size_t b = 0; b < nb; b++) {
+        size_t m = sizes[b];
+        int out = 0;
+        char item[96];
+        if (which == 0) {
+            double z = gsl_cdf_ugaussian_Qinv(a);
+            out = sw > 0.0 && fabs(bm[b] - mref) > z * sw / sqrt((double)m);
+            snprintf(item, sizeof item, "block %zu (obs %zu-%zu) mean %+.3g pooled sd off",
+                     b + 1, start + 1, start + m, sw > 0.0 ? (bm[b] - mref) / sw : 0.0);
+        } else {
+            double nu = (double)(m - 1);
+            double q = sref > 0.0 ? nu * bs[b] * bs[b] / (sref * sref) : 0.0;
+            out = sref > 0.0 && (q < gsl_cdf_chisq_Pinv(a, nu) || q > gsl_cdf_chisq_Qinv(a, nu));
+            snprintf(item, sizeof item, "block %zu (obs %zu-%zu) sd %.3g x median block sd",
+                     b + 1, start + 1, start + m, sref > 0.0 ? bs[b] / sref : 0.0);
+        }
+        if (out) {
+            append(list, 150, item);
+            flagged++;
+        }
+        start += m;
+    }
+    if (flagged)
+        snprintf(detail, cap, "%s (rule: %s, Bonferroni over %zu blocks)", list, rule, nb);
+    else
+        snprintf(detail, cap, "no block %s stands out (rule: %s, Bonferroni over %zu blocks)",
+                 which == 0 ? "mean" : "sd", rule, nb);
+}
+
+static void fill(diag_test *t, const char *name, double stat, double df, double p,
+                 double alpha, double effect, const char *effect_label)
+{
+    t->name = name;
+    t->criterion = DIAG_VARIANCE;
+    t->valid = 1;
+    t->statistic = stat;
+    t->df = df;
+    t->p = p;
+    t->pass = p >= alpha;
+    t->effect = effect;
+    t->effect_label = effect_label;
+    t->detail[0] = '\0';
+}
+
+/* Shared driver of the two block tests: WHICH 0 = ANOVA of means,
+ * 1 = Brown-Forsythe of spreads. */
+static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
+                      diag_test *out, int which)
+{
+    const char *name = which ? "brown-forsythe" : "anova";
+    if (!x || nblocks < 2 || !(alpha > 0.0 && alpha < 1.0)) {
+        diag_test_invalid(out, name, DIAG_VARIANCE, "needs data, at least 2 blocks and 0 < alpha < 1");
+        return HN_EINVAL;
+    }
+    if (n < 3 * nblocks) {
+        diag_test_invalid(out, name, DIAG_VARIANCE, "too few observations for the blocks (3 per block needed)");
+        return HN_ESHORT;
+    }
+    size_t *sizes = malloc(nblocks * sizeof *sizes);
+    double *d = shifted_copy(x, n);
+    double *z = which ? malloc(2 * n * sizeof *z) : NULL;
+    double *scratch = malloc(3 * nblocks * sizeof *scratch);
+    if (!sizes || !d || (which && !z) || !scratch) {
+        free(sizes);
+        free(d);
+        free(z);
+        free(scratch);
+        diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
+        return HN_ENOMEM;
+    }
+    block_sizes(n, nblocks, sizes);
+    double ssb, ssw, F, df1, df2, p;
+    if (which) {
+        abs_deviations(d, sizes, nblocks, 1, z, z + n);
+        anova_sums(z, sizes, nblocks, &ssb, &ssw);
+    } else {
+        anova_sums(d, sizes, nblocks, &ssb, &ssw);
+    }
+    int rc = f_from_sums(ssb, ssw, n, nblocks, &F, &df1, &df2, &p);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_VARIANCE, "the data are constant within every block");
+    } else if (which) {
+        /* practical size: largest over smallest block sd */
+        double lo = INFINITY, hi = 0.0;
+        size_t start = 0;
+        for (size_t b = 0; b < nblocks; b++) {
+            double m = mean_of(d + start, sizes[b]), v = 0.0;
+            for (size_t i = 0; i < sizes[b]; i++)
+                v += (d[start + i] - m) * (d[start + i] - m);
+            double sd = sqrt(v / (double)(sizes[b] - 1));
+            lo = sd < lo ? sd : lo;
+            hi = sd > hi ? sd : hi;
+            start += sizes[b];
+        }
+        fill(out, name, F, df1, p, alpha, lo > 0.0 ? hi / lo : INFINITY,
+             "largest over smallest block sd");
+        describe_blocks(d, sizes, nblocks, n, alpha, 1, out->detail, sizeof out->detail, scratch);
+    } else {
+        fill(out, name, F, df1, p, alpha, ssb / (ssb + ssw),
+             "share of variance explained by block means (eta squared)");
+        describe_blocks(d, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, scratch);
+    }
+    free(sizes);
+    free(d);
+    free(z);
+    free(scratch);
+    return rc == HN_ECONST ? HN_ECONST : HN_OK;
+}
+
+/* Brown-Forsythe test of equal variances over NBLOCKS consecutive blocks of
+ * X[0..n-1] (sizes differ by at most one, the first blocks larger).  OUT:
+ * statistic W ~ F(k-1, n-k), df = k-1 (df2 = n-k in detail's context),
+ * effect = largest / smallest block sd; detail names the blocks whose sd
+ * stands out (rule stated there and at describe_blocks).  Returns HN_OK, HN_EINVAL, HN_ESHORT
+ * (fewer than 3 observations a block), HN_ECONST or HN_ENOMEM. */
+int diag_brown_forsythe_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out)
+{
+    return block_test(x, n, nblocks, alpha, out, 1);
+}
+
+/* One-way ANOVA of the means of NBLOCKS consecutive blocks of X[0..n-1].
+ * OUT: F ~ F(k-1, n-k), df = k-1, effect = eta squared; detail names the
+ * blocks whose mean stands out.  Returns as diag_brown_forsythe_blocks. */
+int diag_anova_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out)
+{
+    return block_test(x, n, nblocks, alpha, out, 0);
+}
+
+/* Two-pass mean and sum of squared deviations of X[0..w-1]. */
+static void window_exact(const double *x, size_t w, double *m, double *m2)
+{
+    double mm = mean_of(x, w), s = 0.0;
+    for (size_t i = 0; i < w; i++)
+        s += (x[i] - mm) * (x[i] - mm);
+    *m = mm;
+    *m2 = s;
+}
+
+/* Rolling mean and sd (divisor w-1) over windows X[i..i+w-1], i = 0..n-w,
+ * into MEAN and SD (caller's arrays of n-w+1 doubles; either may be NULL).
+ * O(n): each step updates the window mean and sum of squares by removing
+ * the oldest and adding the newest value (Welford-style), and every W steps
+ * both are recomputed exactly by two passes so that rounding cannot drift.
+ * Returns HN_OK, HN_EINVAL (w < 2 or no X) or HN_ESHORT (w > n). */
+int diag_rolling(const double *x, size_t n, size_t w, double *mean, double *sd)
+{
+    if (!x || w < 2)
+        return HN_EINVAL;
+    if (w > n)
+        return HN_ESHORT;
+    double m, m2;
+    window_exact(x, w, &m, &m2);
+    for (size_t i = 0;; i++) {
+        if (mean)
+            mean[i] = m;
+        if (sd)
+            sd[i] = sqrt((m2 > 0.0 ? m2 : 0.0) / (double)(w - 1));
+        if (i + w >= n)
+            break;
+        if ((i + 1) % w == 0) {
+            window_exact(x + i + 1, w, &m, &m2);
+        } else {
+            double xo = x[i], xn = x[i + w];
+            double mnew = m + (xn - xo) / (double)w;
+            m2 += (xn - xo) * ((xn - mnew) + (xo - m));
+            m = mnew;
+        }
+    }
+    return HN_OK;
+}
