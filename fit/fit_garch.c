@@ -1,18 +1,508 @@
 /* fit_garch.c - joint ARMA mean and GARCH(1,1) variance by conditional ML. */
-#include <string.h>
-
 #include "fit_garch.h"
+#include "fit_garch_lik.h"
+#include "fit_internal.h"
+#include "fit_optim.h"
 #include "hn_status.h"
 
-/* Not yet implemented: refuses every call (see fit_garch.h). */
+#include <float.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <lapacke.h>
+
+#include "fit_arma.h"
+
+/* Unconstrained parameters x seen by the optimiser (natural theta in fit_spec.h order):
+ *   mean terms    x = theta / scale    (mu scaled by the sd of y, AR/MA as they are)
+ *   omega         = var(y) exp(x_o)                         (> 0)
+ *   alpha1        = P q,  beta1 = P (1 - q),  P = L(x_p), q = L(x_q),
+ *                   L the logistic function                 (> 0 each, alpha1 + beta1 < 1)
+ *   nu            = 2 + (NU_MAX - 2) L(x_nu)                 (2 < nu < NU_MAX)
+ * The mean part is not constrained: its roots are reported after the fit. */
+#define NU_MAX 300.0
+#define NU_WARN_HIGH 200.0      /* nu above this: at the normal limit */
+#define NU_WARN_LOW 2.05        /* nu below this: variance barely finite */
+#define NEAR_UNIT 0.99          /* persistence above this is reported */
+#define ALPHA_ZERO 1e-4         /* alpha1 below this: beta1 not identified */
+#define SHORT_GARCH 500         /* fewer residuals than this: variance model is weakly
+                                   determined (a rule of thumb, common practice) */
+#define MIN_GARCH_OBS 100       /* fewest residuals accepted at all */
+
+typedef struct {
+    fit_garch_work w;
+    double sy;                  /* sd of y: scale of mu */
+    double vy;                  /* variance of y: scale of omega */
+    double *theta;              /* np natural parameters (scratch) */
+    double *gth;                /* np natural gradient (scratch) */
+    double *scale;              /* np scales of the natural parameters (Hessian) */
+} garch_ctx;
+
+static double logistic(double x)
+{
+    return x >= 0.0 ? 1.0 / (1.0 + exp(-x)) : exp(x) / (1.0 + exp(x));
+}
+
+static double logit(double p)
+{
+    return log(p / (1.0 - p));
+}
+
+/* theta from x; when JAC is not NULL it receives the 2 x 2 block
+ * d(alpha, beta)/d(x_p, x_q) as J[0]=da/dxp J[1]=da/dxq J[2]=db/dxp J[3]=db/dxq. */
+static void x_to_theta(const garch_ctx *c, const double *x, double *th, double *jac)
+{
+    const fit_garch_work *w = &c->w;
+    const int io = w->i_omega;
+    for (int i = 0; i < w->k_mean; i++)
+        th[i] = x[i];
+    if (w->spec.mean)
+        th[0] = x[0] * c->sy;
+    th[io] = c->vy * exp(x[io]);
+    double P = logistic(x[io + 1]), q = logistic(x[io + 2]);
+    th[io + 1] = P * q;
+    th[io + 2] = P * (1.0 - q);
+    if (jac) {
+        double dP = P * (1.0 - P), dq = q * (1.0 - q);
+        jac[0] = dP * q;
+        jac[1] = P * dq;
+        jac[2] = dP * (1.0 - q);
+        jac[3] = -P * dq;
+    }
+    if (w->has_nu)
+        th[w->np - 1] = 2.0 + (NU_MAX - 2.0) * logistic(x[w->np - 1]);
+}
+
+/* x from a feasible theta (alpha1, beta1 > 0, alpha1 + beta1 < 1, 2 < nu < NU_MAX). */
+static void theta_to_x(const garch_ctx *c, const double *th, double *x)
+{
+    const fit_garch_work *w = &c->w;
+    const int io = w->i_omega;
+    for (int i = 0; i < w->k_mean; i++)
+        x[i] = th[i];
+    if (w->spec.mean)
+        x[0] = th[0] / c->sy;
+    x[io] = log(th[io] / c->vy);
+    double P = th[io + 1] + th[io + 2];
+    x[io + 1] = logit(P);
+    x[io + 2] = logit(th[io + 1] / P);
+    if (w->has_nu)
+        x[w->np - 1] = logit((th[w->np - 1] - 2.0) / (NU_MAX - 2.0));
+}
+
+/* Optimiser objective: minus the log-likelihood per residual, in x. */
+static int obj_x(const double *x, double *f, double *grad, void *vctx)
+{
+    garch_ctx *c = vctx;
+    fit_garch_work *w = &c->w;
+    const int io = w->i_omega, np = w->np;
+    double jac[4], ll;
+    x_to_theta(c, x, c->theta, jac);
+    int rc = fit_garch_loglik(w, c->theta, &ll, grad ? c->gth : NULL, NULL);
+    if (rc != HN_OK)
+        return rc;
+    const double inv = -1.0 / (double)w->N;
+    *f = inv * ll;
+    if (grad) {
+        const double *g = c->gth;
+        for (int i = 0; i < w->k_mean; i++)
+            grad[i] = inv * g[i];
+        if (w->spec.mean)
+            grad[0] *= c->sy;
+        grad[io] = inv * g[io] * c->theta[io];
+        grad[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2]);
+        grad[io + 2] = inv * (g[io + 1] * jac[1] + g[io + 2] * jac[3]);
+        if (w->has_nu) {
+            double L = logistic(x[np - 1]);
+            grad[np - 1] = inv * g[np - 1] * (NU_MAX - 2.0) * L * (1.0 - L);
+        }
+    }
+    return HN_OK;
+}
+
+/* Hessian objective: minus the log-likelihood per residual in scaled natural
+ * parameters u_i = theta_i / scale_i (so that one relative step fits all). */
+static int obj_u(const double *u, double *f, double *grad, void *vctx)
+{
+    garch_ctx *c = vctx;
+    fit_garch_work *w = &c->w;
+    double ll;
+    for (int i = 0; i < w->np; i++)
+        c->theta[i] = u[i] * c->scale[i];
+    int rc = fit_garch_loglik(w, c->theta, &ll, grad ? c->gth : NULL, NULL);
+    if (rc != HN_OK)
+        return rc;
+    const double inv = -1.0 / (double)w->N;
+    *f = inv * ll;
+    if (grad)
+        for (int i = 0; i < w->np; i++)
+            grad[i] = inv * c->gth[i] * c->scale[i];
+    return HN_OK;
+}
+
+/* Two-pass mean and variance (divisor n) of Y[0..n-1]. */
+static void mean_var(const double *y, size_t n, double *m, double *v)
+{
+    double s = 0.0;
+    for (size_t i = 0; i < n; i++)
+        s += y[i];
+    double mu = s / (double)n, ss = 0.0, sc = 0.0;
+    for (size_t i = 0; i < n; i++) {
+        double d = y[i] - mu;
+        ss += d * d;
+        sc += d;
+    }
+    *m = mu + sc / (double)n;
+    *v = (ss - sc * sc / (double)n) / (double)n;
+}
+
+static double vnorm(const double *g, int np)
+{
+    double s = 0.0;
+    for (int i = 0; i < np; i++)
+        s += g[i] * g[i];
+    return sqrt(s);
+}
+
+/* Newton steps on the objective in x with the Hessian from differences of
+ * the analytic gradient, after BFGS2: near the optimum the objective changes
+ * by less than its rounding error, so line searches on it stall, while the
+ * gradient still carries information.  Steps aim at 1e-4 TOL; one is kept when it lowers the
+ * gradient norm without raising the objective beyond rounding.  Updates X,
+ * *EVALS (objective calls) and *GN (final gradient norm). */
+static int newton_polish(garch_ctx *c, double *x, double tol, int *evals, double *gn)
+{
+    const int np = c->w.np;
+    size_t nn = (size_t)np * (size_t)np;
+    double *H = malloc((nn + 4 * (size_t)np) * sizeof *H);
+    if (!H)
+        return HN_ENOMEM;
+    double *g = H + nn, *d = g + np, *xt = d + np, *gt = xt + np;
+    double f, ft;
+    int rc = obj_x(x, &f, g, c);
+    (*evals)++;
+    if (rc != HN_OK) {
+        free(H);
+        return HN_OK;
+    }
+    *gn = vnorm(g, np);
+    /* Aim well below the tolerance: the extra digits cost a few passes. */
+    const double target = 1e-4 * tol;
+    for (int it = 0; it < 6 && *gn >= target; it++) {
+        if (fit_hessian_fd(np, x, obj_x, c, H) != HN_OK)
+            break;
+        *evals += 2 * np;
+        memcpy(d, g, (size_t)np * sizeof *d);
+        if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', np, 1, H, np, d, 1) != 0)
+            break;
+        int kept = 0;
+        for (double lam = 1.0; lam > 0.1 && !kept; lam *= 0.5) {
+            for (int i = 0; i < np; i++)
+                xt[i] = x[i] - lam * d[i];
+            (*evals)++;
+            if (obj_x(xt, &ft, gt, c) != HN_OK)
+                continue;
+            double gnt = vnorm(gt, np);
+            if (gnt < *gn && ft <= f + 8.0 * DBL_EPSILON * fabs(f)) {
+                memcpy(x, xt, (size_t)np * sizeof *x);
+                memcpy(g, gt, (size_t)np * sizeof *g);
+                f = ft;
+                *gn = gnt;
+                kept = 1;
+            }
+        }
+        if (!kept)
+            break;
+    }
+    free(H);
+    return HN_OK;
+}
+
+/* Candidate (alpha1, beta1) pairs for the starting points, tried in order. */
+static const double start_ab[][2] = {
+    { 0.05, 0.90 }, { 0.10, 0.80 }, { 0.15, 0.65 }, { 0.03, 0.95 },
+    { 0.20, 0.50 }, { 0.08, 0.70 }, { 0.02, 0.80 }, { 0.30, 0.60 },
+};
+#define N_START_AB ((int)(sizeof start_ab / sizeof start_ab[0]))
+
+/* Standard errors at the estimate: Hessian of minus the log-likelihood by
+ * differences of the analytic gradient in scaled natural parameters, and the
+ * sandwich H^-1 (G'G) H^-1 with G the per-observation scores. */
+static int standard_errors(garch_ctx *c, const double *th, fit_result *r)
+{
+    fit_garch_work *w = &c->w;
+    const int np = w->np;
+    const size_t N = w->N;
+    for (int i = 0; i < np; i++) {
+        r->se[i] = NAN;
+        r->se_robust[i] = NAN;
+    }
+    /* Scales: the parameter's size, floored at a fraction of its natural unit. */
+    for (int i = 0; i < np; i++) {
+        double unit = 1.0;
+        if (w->spec.mean && i == 0)
+            unit = c->sy;
+        else if (i == w->i_omega)
+            unit = c->vy;
+        double a = fabs(th[i]);
+        c->scale[i] = a > 1e-3 * unit ? a : 1e-3 * unit;
+    }
+    size_t nn = (size_t)np * (size_t)np;
+    double *H = malloc(3 * nn * sizeof *H);
+    double *u = malloc((size_t)np * sizeof *u);
+    double *G = malloc(N * (size_t)np * sizeof *G);
+    if (!H || !u || !G) {
+        free(H);
+        free(u);
+        free(G);
+        return HN_ENOMEM;
+    }
+    double *Hi = H + nn, *B = H + 2 * nn;
+    for (int i = 0; i < np; i++)
+        u[i] = th[i] / c->scale[i];
+    int rc = fit_hessian_fd(np, u, obj_u, c, H);
+    if (rc == HN_OK) {
+        for (size_t i = 0; i < nn; i++)
+            H[i] *= (double)N;                 /* total, not per residual */
+        rc = fit_spd_inverse(np, H, Hi);
+    }
+    if (rc == HN_OK) {
+        double ll;
+        rc = fit_garch_loglik(w, th, &ll, NULL, G);
+    }
+    if (rc == HN_OK) {
+        /* B = sum_t s_t s_t' in u (scores times scale). */
+        memset(B, 0, nn * sizeof *B);
+        for (size_t t = 0; t < N; t++) {
+            const double *g = G + t * (size_t)np;
+            for (int i = 0; i < np; i++) {
+                double gi = g[i] * c->scale[i];
+                for (int j = 0; j <= i; j++)
+                    B[i * np + j] += gi * g[j] * c->scale[j];
+            }
+        }
+        for (int i = 0; i < np; i++)
+            for (int j = 0; j < i; j++)
+                B[j * np + i] = B[i * np + j];
+        /* cov_u = Hi B Hi, reusing H for Hi B. */
+        for (int i = 0; i < np; i++)
+            for (int j = 0; j < np; j++) {
+                double s = 0.0;
+                for (int k = 0; k < np; k++)
+                    s += Hi[i * np + k] * B[k * np + j];
+                H[i * np + j] = s;
+            }
+        r->cov = malloc(nn * sizeof *r->cov);
+        if (!r->cov)
+            rc = HN_ENOMEM;
+    }
+    if (rc == HN_OK) {
+        for (int i = 0; i < np; i++) {
+            for (int j = 0; j < np; j++)
+                r->cov[i * np + j] = Hi[i * np + j] * c->scale[i] * c->scale[j];
+            double rob = 0.0;
+            for (int k = 0; k < np; k++)
+                rob += H[i * np + k] * Hi[k * np + i];
+            r->se[i] = sqrt(r->cov[i * np + i]);
+            r->se_robust[i] = rob > 0.0 ? sqrt(rob) * c->scale[i] : NAN;
+        }
+    }
+    free(H);
+    free(u);
+    free(G);
+    if (rc == HN_ENOMEM)
+        return rc;
+    if (rc != HN_OK)
+        r->warnings |= FIT_WARN_SINGULAR;
+    return HN_OK;
+}
+
+/* Everything else of the result once the estimate TH is known. */
+static int fill_result(garch_ctx *c, const double *th, fit_result *r)
+{
+    fit_garch_work *w = &c->w;
+    const int io = w->i_omega, np = w->np;
+    const size_t N = w->N;
+    double ll;
+    int rc = fit_garch_loglik(w, th, &ll, NULL, NULL);
+    if (rc != HN_OK)
+        return HN_ENUMERIC;
+    memcpy(r->par, th, (size_t)np * sizeof *th);
+    r->loglik = ll;
+    for (size_t i = 0; i < N; i++) {
+        r->resid[i] = w->e[i];
+        r->sigma_t[i] = sqrt(w->h[i]);
+        r->std_resid[i] = w->e[i] / r->sigma_t[i];
+    }
+    fit_result_criteria(r, np);
+    double a = th[io + 1], b = th[io + 2];
+    r->persistence = a + b;
+    r->sigma2 = r->persistence < 1.0 ? th[io] / (1.0 - r->persistence) : INFINITY;
+    r->half_life = r->persistence < 1.0 && r->persistence > 0.0
+                       ? log(0.5) / log(r->persistence) : INFINITY;
+    if (r->persistence > NEAR_UNIT)
+        r->warnings |= FIT_WARN_NEAR_UNIT;
+    if (a < ALPHA_ZERO)
+        r->warnings |= FIT_WARN_ALPHA_ZERO;
+    if (N < SHORT_GARCH)
+        r->warnings |= FIT_WARN_SHORT_GARCH;
+    if (w->has_nu && (th[np - 1] > NU_WARN_HIGH || th[np - 1] < NU_WARN_LOW))
+        r->warnings |= FIT_WARN_NU_BOUND;
+    rc = fit_result_roots(r);
+    if (rc != HN_OK)
+        return rc;
+    return standard_errors(c, th, r);
+}
+
 int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
                        const fit_options *opt, fit_result *res)
 {
-    (void)y;
-    (void)n;
-    (void)spec;
-    (void)opt;
-    if (res)
+    if (!res)
+        return HN_EINVAL;
+    memset(res, 0, sizeof *res);
+    if (!y || !spec || !spec->garch)
+        return HN_EINVAL;
+    for (size_t i = 0; i < n; i++)
+        if (!isfinite(y[i]))
+            return HN_EINVAL;
+    fit_options o = opt ? *opt : fit_default_options();
+    if (o.n_starts < 1)
+        o.n_starts = 1;
+    const int np = fit_spec_nparams(spec);
+    size_t p = (size_t)fit_spec_max_ar(spec);
+    size_t need = MIN_GARCH_OBS > 3 * (size_t)np ? MIN_GARCH_OBS : 3 * (size_t)np;
+    if (n < p || n - p < need)
+        return HN_ESHORT;
+
+    garch_ctx c;
+    memset(&c, 0, sizeof c);
+    double ybar, vy;
+    mean_var(y, n, &ybar, &vy);
+    if (!(vy > 0.0))
+        return HN_ECONST;
+    c.sy = sqrt(vy);
+    c.vy = vy;
+    int rc = fit_garch_work_init(&c.w, y, n, spec);
+    if (rc != HN_OK)
+        return rc;
+    const int ns = o.n_starts;
+    double *buf = malloc((size_t)np * (size_t)(4 + 2 * ns) * sizeof *buf);
+    double *fs = malloc((size_t)ns * sizeof *fs);
+    if (!buf || !fs) {
+        free(buf);
+        free(fs);
+        fit_garch_work_free(&c.w);
+        return HN_ENOMEM;
+    }
+    c.theta = buf;
+    c.gth = buf + np;
+    c.scale = buf + 2 * np;
+    double *th = buf + 3 * np;
+    double *xs = buf + 4 * np;             /* ns starting points in x */
+    double *xb = xs + (size_t)ns * np;     /* ns optimised points */
+
+    /* Starting points: the mean start with several (alpha1, beta1), omega
+     * matching the residual variance, nu = 8.  Each is screened by one
+     * likelihood pass; the optimiser runs from the best, and from the next
+     * ones only while a run fails to converge. */
+    rc = fit_arma_start(spec, y, n, th);
+    double s2 = vy;
+    if (rc == HN_OK) {
+        double ssr;
+        if (fit_arma_resid(c.w.aw, y, n, th, NULL, NULL, &ssr, NULL) == HN_OK &&
+            ssr > 0.0 && isfinite(ssr))
+            s2 = ssr / (double)c.w.N;
+    }
+    for (int k = 0; rc == HN_OK && k < ns; k++) {
+        double a, b;
+        if (k < N_START_AB) {
+            a = start_ab[k][0];
+            b = start_ab[k][1];
+        } else {                           /* beyond the table: spread over a grid */
+            a = 0.02 + 0.25 * (double)((k * 7) % 11) / 10.0;
+            b = (0.97 - a) * (0.4 + 0.6 * (double)((k * 3) % 7) / 6.0);
+        }
+        int io = c.w.i_omega;
+        th[io] = s2 * (1.0 - a - b);
+        th[io + 1] = a;
+        th[io + 2] = b;
+        if (c.w.has_nu)
+            th[np - 1] = 8.0;
+        double *x = xs + (size_t)k * np;
+        theta_to_x(&c, th, x);
+        if (obj_x(x, &fs[k], NULL, &c) != HN_OK || !isfinite(fs[k]))
+            fs[k] = INFINITY;
+    }
+    int evaluations = ns;
+
+    int best = -1;
+    double fbest = INFINITY;
+    fit_optim_report rep_best;
+    memset(&rep_best, 0, sizeof rep_best);
+    fit_optim_options oo = fit_optim_default_options();
+    oo.max_iter = o.max_iter;
+    oo.grad_tol = o.grad_tol;
+    oo.interrupt = o.interrupt;
+    for (int tried = 0; rc == HN_OK && tried < ns; tried++) {
+        int k = -1;
+        for (int j = 0; j < ns; j++)       /* next best unexplored start */
+            if (isfinite(fs[j]) && (k < 0 || fs[j] < fs[k]))
+                k = j;
+        if (k < 0)
+            break;
+        fs[k] = NAN;                       /* mark explored */
+        double *x = xb + (size_t)k * np;
+        memcpy(x, xs + (size_t)k * np, (size_t)np * sizeof *x);
+        fit_optim_report rep;
+        int orc = fit_optim_minimise(np, x, obj_x, &c, &oo, &rep);
+        evaluations += rep.evaluations;
+        if (orc == HN_EINTR) {
+            rc = HN_EINTR;
+            break;
+        }
+        if (orc == HN_ENOMEM || orc == HN_EINVAL) {
+            rc = orc;
+            break;
+        }
+        if (orc != HN_OK && orc != HN_ENOCONV)
+            continue;
+        int rc2 = newton_polish(&c, x, o.grad_tol, &evaluations, &rep.grad_norm);
+        if (rc2 != HN_OK) {
+            rc = rc2;
+            break;
+        }
+        rep.converged = rep.grad_norm < o.grad_tol;
+        obj_x(x, &rep.f, NULL, &c);
+        if (rep.f < fbest || (rep.converged && !rep_best.converged && rep.f <= fbest + 1e-12)) {
+            fbest = rep.f;
+            best = k;
+            rep_best = rep;
+        }
+        if (rep_best.converged)
+            break;
+    }
+    if (rc == HN_OK && best < 0)
+        rc = HN_ENUMERIC;
+    if (rc == HN_OK) {
+        x_to_theta(&c, xb + (size_t)best * np, th, NULL);
+        rc = fit_result_init(res, spec, n, c.w.start, 1);
+    }
+    if (rc == HN_OK) {
+        res->evaluations = evaluations;
+        res->converged = rep_best.converged;
+        res->iterations = rep_best.iterations;
+        res->grad_norm = rep_best.grad_norm;
+        if (!rep_best.converged)
+            res->warnings |= FIT_WARN_NOCONV;
+        rc = fill_result(&c, th, res);
+    }
+    free(buf);
+    free(fs);
+    fit_garch_work_free(&c.w);
+    if (rc != HN_OK) {
+        fit_result_free(res);
         memset(res, 0, sizeof *res);
-    return HN_EINVAL;
+    }
+    return rc;
 }

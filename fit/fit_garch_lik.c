@@ -45,7 +45,8 @@ int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_
     w->h = malloc(w->N * sizeof *w->h);
     w->de = w->k_mean ? malloc(w->N * (size_t)w->k_mean * sizeof *w->de) : NULL;
     w->tmp = malloc(4 * (size_t)w->np * sizeof *w->tmp);
-    if (!w->e || !w->h || (w->k_mean && !w->de) || !w->tmp) {
+    w->aw = fit_arma_ws_alloc(spec);
+    if (!w->e || !w->h || (w->k_mean && !w->de) || !w->tmp || !w->aw) {
         fit_garch_work_free(w);
         return HN_ENOMEM;
     }
@@ -58,55 +59,9 @@ void fit_garch_work_free(fit_garch_work *w)
     free(w->de);
     free(w->h);
     free(w->tmp);
+    fit_arma_ws_free(w->aw);
     w->e = w->de = w->h = w->tmp = NULL;
-}
-
-/* Pass 1: residuals e_t and, when WANT_D, their derivatives w.r.t. the mean
- * parameters:  e_t = (y_t - mu) - sum_k ar_k (y_{t-k} - mu) - sum_j ma_j e_{t-j},
- * shocks before the first residual are zero. */
-static void arma_residuals(fit_garch_work *w, const double *th, int want_d)
-{
-    const fit_spec *s = &w->spec;
-    const int km = w->k_mean;
-    const int ia = s->mean ? 1 : 0;       /* first AR coefficient */
-    const int im = ia + s->n_ar;          /* first MA coefficient */
-    const double mu = s->mean ? th[0] : 0.0;
-    double sum_ar = 0.0;
-    for (int k = 0; k < s->n_ar; k++)
-        sum_ar += th[ia + k];
-
-    for (size_t i = 0; i < w->N; i++) {
-        size_t t = w->start + i;
-        double v = w->y[t] - mu;
-        for (int k = 0; k < s->n_ar; k++)
-            v -= th[ia + k] * (w->y[t - (size_t)s->ar_lag[k]] - mu);
-        for (int j = 0; j < s->n_ma; j++) {
-            size_t L = (size_t)s->ma_lag[j];
-            if (i >= L)
-                v -= th[im + j] * w->e[i - L];
-        }
-        w->e[i] = v;
-        if (!want_d)
-            continue;
-        double *d = w->de + i * (size_t)km;
-        if (s->mean)
-            d[0] = -1.0 + sum_ar;
-        for (int k = 0; k < s->n_ar; k++)
-            d[ia + k] = -(w->y[t - (size_t)s->ar_lag[k]] - mu);
-        for (int j = 0; j < s->n_ma; j++) {
-            size_t L = (size_t)s->ma_lag[j];
-            d[im + j] = i >= L ? -w->e[i - L] : 0.0;
-        }
-        for (int j = 0; j < s->n_ma; j++) {
-            size_t L = (size_t)s->ma_lag[j];
-            if (i < L)
-                continue;
-            const double *dp = w->de + (i - L) * (size_t)km;
-            double m = th[im + j];
-            for (int c = 0; c < km; c++)
-                d[c] -= m * dp[c];
-        }
-    }
+    w->aw = NULL;
 }
 
 int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
@@ -125,27 +80,25 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
     if (w->has_nu && !(nu > 2.0))
         return HN_EDOMAIN;
 
-    arma_residuals(w, th, want_d);
-
-    /* sigma2_0 = e2_0 = s2 = mean e_t^2 at the current mean parameters. */
+    /* Pass 1 (fit_arma_resid): e_t, de_t/dtheta_mean, sum e_t^2 and
+     * sum e_t de_t.  sigma2_0 = e2_0 = s2 = mean e_t^2 at these mean parameters. */
     double *dh = w->tmp;                   /* d sigma2_t        (kv) */
     double *de2 = w->tmp + np;             /* d e^2_{t-1}       (km) */
     double *g = w->tmp + 2 * np;           /* gradient          (np) */
-    ksum ss = { 0.0, 0.0 };
-    for (size_t i = 0; i < N; i++)
-        ksum_add(&ss, w->e[i] * w->e[i]);
-    const double s2 = ksum_value(&ss) / (double)N;
+    double ssr;
+    int rc = fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
+                            want_d ? de2 : NULL);
+    if (rc != HN_OK)
+        return HN_EDOMAIN;
+    const double s2 = ssr / (double)N;
     if (!(s2 > 0.0) || !isfinite(s2))
         return HN_EDOMAIN;
     if (want_d) {
         memset(g, 0, (size_t)np * sizeof *g);
         memset(dh, 0, (size_t)kv * sizeof *dh);
         for (int c = 0; c < km; c++) {
-            double a = 0.0;
-            for (size_t i = 0; i < N; i++)
-                a += w->e[i] * w->de[i * (size_t)km + c];
-            dh[c] = 2.0 * a / (double)N;  /* d sigma2_0 */
-            de2[c] = dh[c];                /* d e2_0 */
+            dh[c] = 2.0 * de2[c] / (double)N;  /* d sigma2_0 */
+            de2[c] = dh[c];                     /* d e2_0 */
         }
     }
 

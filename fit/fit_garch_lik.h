@@ -3,6 +3,7 @@
 #define FIT_GARCH_LIK_H
 
 #include <stddef.h>
+#include "fit_arma.h"
 #include "fit_spec.h"
 
 /* Workspace of one fit: sized once, so likelihood passes allocate nothing.
@@ -22,6 +23,7 @@ typedef struct {
     double *de;          /* N x k_mean derivatives of e_t (row-major) */
     double *h;           /* N conditional variances at the last evaluation */
     double *tmp;         /* 4 * np scratch */
+    fit_arma_ws *aw;     /* residual recursion workspace */
 } fit_garch_work;
 
 /* Size W for SPEC (spec->garch set) on Y[0..n-1]; Y must outlive W.
