@@ -1,0 +1,369 @@
+/* diag_battery.c - run every residual check, combine them per criterion and reach a Holm verdict.
+ *
+ * Rules used (each is also named in the result):
+ *   portmanteau lags m: min(10, n/5), raised to p+q+1 when that is smaller so
+ *     that the Ljung-Box / Box-Pierce df m - (p+q) is at least 1;
+ *   ACF/PACF shown to max(m, 20) lags, at most n-1;
+ *   blocks for local mean and variance: width max(10, n/10), i.e. ten blocks
+ *     once n >= 100 and never fewer than 10 observations per block;
+ *   ARCH-LM lags q: 5, or n/10 (at least 1) when that is smaller;
+ *   McLeod-Li: m lags of the squares, df m (no ARMA adjustment);
+ *   criterion p: Bonferroni within the criterion, min(1, k * smallest p) over
+ *     its k valid checks;
+ *   verdict: Holm's step-down over the five white-noise criteria at alpha;
+ *     normality is reported at alpha on its own, outside the verdict;
+ *   practical size: share of variance a long autoregression of order
+ *     min(20, n/10) predicts (order-adjusted, diag_stats.h), on the series
+ *     for serial correlation and on its squares for volatility clustering. */
+#include "diag_battery.h"
+#include "diag_checks.h"
+#include "diag_stats.h"
+#include "hn_status.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_cdf.h>
+
+/* Below this share of variance a significant effect is called negligible;
+ * from this share up an effect is called sizeable. */
+#define NEGLIGIBLE_SHARE 0.01
+#define SIZEABLE_SHARE 0.10
+
+static const char VOL_EFFECT[] =
+    "share of the variance of x^2 a long autoregression predicts (order-adjusted)";
+
+diag_options diag_default_options(void)
+{
+    diag_options o;
+    o.lags = 0;
+    o.df_adjust = 0;
+    o.arch_lags = 0;
+    o.window = 0;
+    o.alpha = 0.05;
+    o.standardised = 0;
+    return o;
+}
+
+/* Everything a check needs, decided once per run. */
+typedef struct {
+    const double *x;
+    size_t n;
+    int m, df_adjust, arch_q;
+    size_t nblocks;
+    double alpha;
+} run_ctx;
+
+typedef int (*check_fn)(const run_ctx *c, diag_test *out);
+
+static int run_mean(const run_ctx *c, diag_test *o) { return diag_mean_ttest(c->x, c->n, c->alpha, o); }
+static int run_bf(const run_ctx *c, diag_test *o) { return diag_brown_forsythe_blocks(c->x, c->n, c->nblocks, c->alpha, o); }
+static int run_anova(const run_ctx *c, diag_test *o) { return diag_anova_blocks(c->x, c->n, c->nblocks, c->alpha, o); }
+static int run_lb(const run_ctx *c, diag_test *o) { return diag_ljung_box(c->x, c->n, c->m, c->df_adjust, c->alpha, o); }
+static int run_bp(const run_ctx *c, diag_test *o) { return diag_box_pierce(c->x, c->n, c->m, c->df_adjust, c->alpha, o); }
+static int run_cp(const run_ctx *c, diag_test *o) { return diag_cum_periodogram(c->x, c->n, c->alpha, o); }
+static int run_ml(const run_ctx *c, diag_test *o) { return diag_mcleod_li(c->x, c->n, c->m, c->alpha, o); }
+static int run_arch(const run_ctx *c, diag_test *o) { return diag_arch_lm(c->x, c->n, c->arch_q, c->alpha, o); }
+static int run_runs(const run_ctx *c, diag_test *o) { return diag_runs_test(c->x, c->n, c->alpha, o); }
+static int run_tp(const run_ctx *c, diag_test *o) { return diag_turning_points(c->x, c->n, c->alpha, o); }
+static int run_jb(const run_ctx *c, diag_test *o)
+{
+    double skew, kurt;
+    return diag_jarque_bera(c->x, c->n, c->alpha, o, &skew, &kurt);
+}
+
+/* The battery: one line per check, in the order they are reported. */
+static const struct {
+    diag_criterion criterion;
+    check_fn run;
+} CHECKS[] = {
+    { DIAG_MEAN, run_mean },
+    { DIAG_VARIANCE, run_bf },
+    { DIAG_VARIANCE, run_anova },
+    { DIAG_SERIAL, run_lb },
+    { DIAG_SERIAL, run_bp },
+    { DIAG_SERIAL, run_cp },
+    { DIAG_VOLATILITY, run_ml },
+    { DIAG_VOLATILITY, run_arch },
+    { DIAG_RANDOM, run_runs },
+    { DIAG_RANDOM, run_tp },
+    { DIAG_NORMAL, run_jb },
+};
+#define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
+
+/* Append formatted text to the summary, silently stopping at its end. */
+static void say(diag_battery *b, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+static void say(diag_battery *b, const char *fmt, ...)
+{
+    size_t used = strlen(b->summary);
+    if (used + 1 >= sizeof b->summary)
+        return;
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(b->summary + used, sizeof b->summary - used, fmt, ap);
+    va_end(ap);
+}
+
+/* Order-adjusted share of variance predictable by a long autoregression of
+ * X (squares = 0) or of X^2 (squares = 1); NAN when it cannot be computed. */
+static double ar_share(const double *x, size_t n, int squares, int *ok_mem)
+{
+    int order = diag_share_order(n);
+    if (order < 1)
+        return NAN;
+    double *acf = malloc((size_t)order * sizeof *acf), *pacf = malloc((size_t)order * sizeof *pacf);
+    double *sq = squares ? malloc(n * sizeof *sq) : NULL;
+    double share = NAN;
+    if (!acf || !pacf || (squares && !sq)) {
+        *ok_mem = 0;
+    } else {
+        const double *src = x;
+        if (squares) {
+            for (size_t i = 0; i < n; i++)
+                sq[i] = x[i] * x[i];
+            src = sq;
+        }
+        if (diag_acf(src, n, order, acf) == HN_OK && diag_pacf(acf, order, pacf) == HN_OK)
+            share = diag_predictable_share(pacf, order, n);
+    }
+    free(acf);
+    free(pacf);
+    free(sq);
+    return share;
+}
+
+/* Criterion p-values (Bonferroni within) and the Holm step-down decision. */
+static void decide(diag_battery *b)
+{
+    int order[DIAG_NCRIT], k = 0;
+    for (int c = 0; c < DIAG_NCRIT; c++) {
+        double pmin = INFINITY;
+        int valid = 0;
+        for (int i = 0; i < b->ntests; i++) {
+            const diag_test *t = &b->tests[i];
+            if ((int)t->criterion != c || !t->valid || !isfinite(t->p))
+                continue;
+            valid++;
+            if (t->p < pmin)
+                pmin = t->p;
+        }
+        b->crit_p[c] = valid ? fmin(1.0, valid * pmin) : NAN;
+        b->crit_pass[c] = 1;
+        b->holm_rank[c] = 0;
+        if (c != DIAG_NORMAL && valid)
+            order[k++] = c;
+    }
+    /* Sort the judged white-noise criteria by p (ties keep criterion order). */
+    for (int i = 1; i < k; i++) {
+        int v = order[i], j = i;
+        while (j > 0 && b->crit_p[order[j - 1]] > b->crit_p[v]) {
+            order[j] = order[j - 1];
+            j--;
+        }
+        order[j] = v;
+    }
+    int stopped = 0;
+    for (int i = 0; i < k; i++) {
+        int c = order[i];
+        b->holm_rank[c] = i + 1;
+        if (!stopped && b->crit_p[c] < b->alpha / (double)(k - i))
+            b->crit_pass[c] = 0;
+        else
+            stopped = 1;
+    }
+    if (isfinite(b->crit_p[DIAG_NORMAL]))
+        b->crit_pass[DIAG_NORMAL] = !(b->crit_p[DIAG_NORMAL] < b->alpha);
+    b->white = 1;
+    for (int c = 0; c < DIAG_NCRIT; c++)
+        if (c != DIAG_NORMAL && !b->crit_pass[c])
+            b->white = 0;
+}
+
+/* Effect of the first valid test of criterion C (they share one per criterion). */
+static double crit_effect(const diag_battery *b, diag_criterion c)
+{
+    for (int i = 0; i < b->ntests; i++)
+        if (b->tests[i].criterion == c && b->tests[i].valid && isfinite(b->tests[i].effect))
+            return b->tests[i].effect;
+    return NAN;
+}
+
+static void write_summary(diag_battery *b, const diag_options *opt)
+{
+    int judged = 0, failed = 0;
+    for (int c = 0; c < DIAG_NCRIT; c++)
+        if (c != DIAG_NORMAL && b->holm_rank[c] > 0) {
+            judged++;
+            failed += !b->crit_pass[c];
+        }
+    b->summary[0] = 0;
+    if (b->white)
+        say(b, "White noise at alpha %g: no criterion failed (Holm over %d criteria).", b->alpha, judged);
+    else {
+        say(b, "Not white noise at alpha %g (Holm over %d criteria): failed", b->alpha, judged);
+        int first = 1;
+        for (int c = 0; c < DIAG_NCRIT; c++) {
+            if (c == DIAG_NORMAL || b->crit_pass[c])
+                continue;
+            say(b, "%s %s (step %d, p %.2g)", first ? "" : ",", diag_criterion_name((diag_criterion)c),
+                b->holm_rank[c], b->crit_p[c]);
+            first = 0;
+        }
+        say(b, ".");
+    }
+    const diag_criterion sized[2] = { DIAG_SERIAL, DIAG_VOLATILITY };
+    for (int s = 0; s < 2; s++) {
+        diag_criterion c = sized[s];
+        double e = crit_effect(b, c);
+        if (!isfinite(e) || b->holm_rank[c] == 0)
+            continue;
+        if (!b->crit_pass[c] && e < NEGLIGIBLE_SHARE)
+            say(b, " %s: significant but negligible, a long AR%s predicts %.1f%% of the variance.",
+                s ? "Volatility" : "Serial correlation", s ? " on x^2" : "", 100.0 * e);
+        else if (b->crit_pass[c] && e >= SIZEABLE_SHARE)
+            say(b, " %s: not significant, yet a long AR%s would predict %.0f%% of the variance;"
+                   " n = %zu is short for a firm verdict.",
+                s ? "Volatility" : "Serial correlation", s ? " on x^2" : "", 100.0 * e, b->n);
+    }
+    int none = 0;
+    for (int c = 0; c < DIAG_NCRIT; c++)
+        if (c != DIAG_NORMAL && b->holm_rank[c] == 0) {
+            say(b, "%s %s", none ? "," : " Not judged (no valid check):", diag_criterion_name((diag_criterion)c));
+            none = 1;
+        }
+    if (none)
+        say(b, ".");
+    if (isfinite(b->crit_p[DIAG_NORMAL]))
+        say(b, " Normality (not in the verdict): %s, p %.2g.",
+            b->crit_pass[DIAG_NORMAL] ? "not rejected" : "rejected", b->crit_p[DIAG_NORMAL]);
+    if (opt->standardised)
+        say(b, " McLeod-Li and ARCH-LM df are not reduced for the 2 GARCH variance parameters.");
+}
+
+int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_battery *out)
+{
+    diag_options def = diag_default_options();
+    if (!opt)
+        opt = &def;
+    memset(out, 0, sizeof *out);
+    if (!x || !(opt->alpha > 0.0 && opt->alpha < 1.0) || opt->lags < 0 || opt->df_adjust < 0 ||
+        opt->arch_lags < 0)
+        return HN_EINVAL;
+    if (n < 8)
+        return HN_ESHORT;
+    int rc = diag_mean_sd(x, n, &out->mean, &out->sd);
+    if (rc != HN_OK)
+        return rc;
+    if (!(out->sd > 0.0))
+        return HN_ECONST;
+
+    out->n = n;
+    out->alpha = opt->alpha;
+    out->band = gsl_cdf_ugaussian_Qinv(opt->alpha / 2.0) / sqrt((double)n);
+
+    /* Portmanteau lags. */
+    if (opt->lags > 0) {
+        out->m = opt->lags;
+        out->lag_rule = "set by the user";
+    } else {
+        size_t m = n / 5 < 10 ? n / 5 : 10;
+        out->m = (int)m;
+        out->lag_rule = "min(10, n/5)";
+        if (out->m < opt->df_adjust + 1) {
+            out->m = opt->df_adjust + 1;
+            out->lag_rule = "min(10, n/5), raised to p+q+1 so that df >= 1";
+        }
+    }
+    /* Blocks for local mean and variance. */
+    size_t w;
+    if (opt->window > 0) {
+        w = opt->window;
+        out->window_rule = "set by the user";
+    } else {
+        w = n / 10 > 10 ? n / 10 : 10;
+        out->window_rule = "max(10, n/10): ten blocks from n = 100, at least 10 per block";
+    }
+    out->window = w;
+    int arch_q = opt->arch_lags > 0 ? opt->arch_lags : (n / 10 < 5 ? (int)(n / 10) : 5);
+    if (arch_q < 1)
+        arch_q = 1;
+
+    /* ACF, PACF and the Ljung-Box profile. */
+    size_t top = (size_t)(out->m > 20 ? out->m : 20);
+    if (top > n - 1)
+        top = n - 1;
+    out->acf_lags = (int)top;
+    out->acf = malloc(top * sizeof *out->acf);
+    out->pacf = malloc(top * sizeof *out->pacf);
+    out->profile_q = malloc(top * sizeof *out->profile_q);
+    out->profile_p = malloc(top * sizeof *out->profile_p);
+    if (!out->acf || !out->pacf || !out->profile_q || !out->profile_p) {
+        diag_battery_free(out);
+        return HN_ENOMEM;
+    }
+    rc = diag_acf(x, n, (int)top, out->acf);
+    if (rc != HN_OK) {
+        diag_battery_free(out);
+        return rc;
+    }
+    if (diag_pacf(out->acf, (int)top, out->pacf) != HN_OK) {
+        /* Left as NAN from the failing lag on (diag_pacf marks them). */
+    }
+    double dn = (double)n, q = 0.0;
+    for (size_t k = 1; k <= top; k++) {
+        q += out->acf[k - 1] * out->acf[k - 1] / (dn - (double)k);
+        out->profile_q[k - 1] = dn * (dn + 2.0) * q;
+        int df = (int)k - opt->df_adjust;
+        out->profile_p[k - 1] = df >= 1 ? gsl_cdf_chisq_Q(out->profile_q[k - 1], (double)df) : NAN;
+    }
+
+    /* The checks. */
+    run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha };
+    for (size_t i = 0; i < NCHECKS && out->ntests < DIAG_MAX_TESTS; i++) {
+        diag_test *t = &out->tests[out->ntests++];
+        rc = CHECKS[i].run(&ctx, t);
+        if (rc == HN_ENOMEM) {
+            diag_battery_free(out);
+            return HN_ENOMEM;
+        }
+        t->criterion = CHECKS[i].criterion;
+    }
+
+    /* Practical size beside significance. */
+    int mem_ok = 1;
+    double serial = ar_share(x, n, 0, &mem_ok), vol = ar_share(x, n, 1, &mem_ok);
+    if (!mem_ok) {
+        diag_battery_free(out);
+        return HN_ENOMEM;
+    }
+    for (int i = 0; i < out->ntests; i++) {
+        diag_test *t = &out->tests[i];
+        if (!t->valid)
+            continue;
+        if (t->criterion == DIAG_SERIAL) {
+            t->effect = serial;
+            t->effect_label = "share of variance a long autoregression predicts (order-adjusted)";
+        } else if (t->criterion == DIAG_VOLATILITY) {
+            t->effect = vol;
+            t->effect_label = VOL_EFFECT;
+        }
+    }
+
+    decide(out);
+    write_summary(out, opt);
+    return HN_OK;
+}
+
+void diag_battery_free(diag_battery *b)
+{
+    if (!b)
+        return;
+    free(b->acf);
+    free(b->pacf);
+    free(b->profile_q);
+    free(b->profile_p);
+    b->acf = b->pacf = b->profile_q = b->profile_p = NULL;
+}
