@@ -43,11 +43,13 @@ $(BUILD)/libhoneshell.a: $(SH_OBJ)
 	@ar rcs $@ $^
 
 hone: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
-	$(CC) $(ALL_CFLAGS) -o $@ $^ $(LDLIBS)
+	@echo "  LINK $@"
+	@$(CC) $(ALL_CFLAGS) -o $@ $^ $(LDLIBS)
 
 $(BUILD)/tests/%: tests/unit/%.c tests/unit/testutil.h $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
 	@mkdir -p $(dir $@)
-	$(CC) $(ALL_CFLAGS) -Itests/unit -o $@ $< $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(TEST_LIBS) $(LDLIBS)
+	@echo "  LINK $@"
+	@$(CC) $(ALL_CFLAGS) -Itests/unit -o $@ $< $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(TEST_LIBS) $(LDLIBS)
 
 check: hone $(TEST_BIN)
 	@HONE=$(CURDIR)/hone BUILD=$(BUILD) sh tests/run.sh

@@ -8,6 +8,7 @@
 
 extern const sh_command sh_cmds_data[];     /* load, series, transform */
 extern const sh_command sh_cmds_model[];    /* fit, check, models, use */
+extern const sh_command sh_cmds_sim[];      /* simulate */
 extern const sh_command sh_cmds_misc[];     /* set, help, quit */
 
 #endif

@@ -1,0 +1,150 @@
+/* sh_journal.c - write the audit journal, synced after every entry. */
+#include "sh_journal.h"
+#include "sh_session.h"
+#include "hn_status.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <openssl/evp.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <sys/types.h>
+#include <time.h>
+#include <unistd.h>
+
+#ifndef HONE_VERSION
+#define HONE_VERSION "0.0.0"
+#endif
+
+struct sh_journal {
+    FILE *f;
+    char path[1024];
+};
+
+int sh_sha256_file(const char *path, char hex[65], long long *size)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return HN_EIO;
+    EVP_MD_CTX *ctx = EVP_MD_CTX_new();
+    unsigned char buf[65536], md[EVP_MAX_MD_SIZE];
+    unsigned int mdlen = 0;
+    long long total = 0;
+    size_t k;
+    int ok = ctx && EVP_DigestInit_ex(ctx, EVP_sha256(), NULL) == 1;
+    while (ok && (k = fread(buf, 1, sizeof buf, f)) > 0) {
+        ok = EVP_DigestUpdate(ctx, buf, k) == 1;
+        total += (long long)k;
+    }
+    ok = ok && !ferror(f) && EVP_DigestFinal_ex(ctx, md, &mdlen) == 1;
+    EVP_MD_CTX_free(ctx);
+    fclose(f);
+    if (!ok)
+        return HN_EIO;
+    for (unsigned i = 0; i < mdlen && i < 32; i++)
+        snprintf(hex + 2 * i, 3, "%02x", md[i]);
+    hex[64] = '\0';
+    if (size)
+        *size = total;
+    return HN_OK;
+}
+
+static void sync_journal(sh_journal *j)
+{
+    fflush(j->f);
+    fsync(fileno(j->f));
+}
+
+sh_journal *sh_journal_open(const char *path, const sh_session *s, char *err, size_t errlen)
+{
+    struct stat st;
+    if (stat(path, &st) == 0 && S_ISDIR(st.st_mode)) {
+        snprintf(err, errlen, "%s is a directory, not a journal file", path);
+        return NULL;
+    }
+    sh_journal *j = calloc(1, sizeof *j);
+    if (!j) {
+        snprintf(err, errlen, "out of memory");
+        return NULL;
+    }
+    snprintf(j->path, sizeof j->path, "%s", path);
+    j->f = fopen(path, "w");
+    if (!j->f) {
+        snprintf(err, errlen, "cannot write journal %s: %s", path, strerror(errno));
+        free(j);
+        return NULL;
+    }
+    char host[256] = "unknown", when[64];
+    const char *user = getenv("USER");
+    if (!user || !*user)
+        user = getenv("LOGNAME");
+    gethostname(host, sizeof host - 1);
+    time_t now = time(NULL);
+    struct tm tmv;
+    gmtime_r(&now, &tmv);
+    strftime(when, sizeof when, "%Y-%m-%dT%H:%M:%SZ", &tmv);
+    fprintf(j->f, "hone-journal 1\n");
+    fprintf(j->f, "tool      hone %s (built %s)\n", HONE_VERSION, __DATE__);
+    fprintf(j->f, "started   %s\n", when);
+    fprintf(j->f, "by        %s on %s\n", user ? user : "unknown", host);
+    fprintf(j->f, "settings  alpha=%g lags=%d level=%g\n", s->alpha, s->lags, s->level);
+    sync_journal(j);
+    return j;
+}
+
+int sh_journal_input(sh_journal *j, const char *path)
+{
+    char hex[65];
+    long long size = 0;
+    int rc = sh_sha256_file(path, hex, &size);
+    if (rc != HN_OK)
+        return rc;
+    fprintf(j->f, "input     sha256=%s bytes=%lld path=%s\n", hex, size, path);
+    sync_journal(j);
+    return HN_OK;
+}
+
+static void put_lines(FILE *f, const char *prefix, const char *text)
+{
+    const char *p = text;
+    while (*p) {
+        const char *e = strchr(p, '\n');
+        size_t l = e ? (size_t)(e - p) : strlen(p);
+        fprintf(f, "%s%.*s\n", prefix, (int)l, p);
+        p += l + (e ? 1 : 0);
+    }
+}
+
+void sh_journal_entry(sh_journal *j, const char *line, const char *output, const char *error)
+{
+    /* A command line never spans lines in the journal. */
+    fputs("> ", j->f);
+    for (const char *p = line; *p; p++)
+        fputc(*p == '\n' || *p == '\r' ? ' ' : *p, j->f);
+    fputc('\n', j->f);
+    put_lines(j->f, "| ", output);
+    if (error) {
+        fputs("! ", j->f);
+        for (const char *p = error; *p; p++)
+            fputc(*p == '\n' ? ' ' : *p, j->f);
+        fputc('\n', j->f);
+    } else {
+        fputs("= ok\n", j->f);
+    }
+    sync_journal(j);
+}
+
+const char *sh_journal_path(const sh_journal *j) { return j->path; }
+
+void sh_journal_close(sh_journal *j)
+{
+    if (!j)
+        return;
+    if (j->f) {
+        sync_journal(j);
+        fclose(j->f);
+    }
+    free(j);
+}
