@@ -193,45 +193,45 @@ static double crit_effect(const diag_battery *b, diag_criterion c)
 
 static void write_summary(diag_battery *b, const diag_options *opt)
 {
-    int judged = 0, failed = 0;
+    int judged = 0;
     for (int c = 0; c < DIAG_NCRIT; c++)
-        if (c != DIAG_NORMAL && b->holm_rank[c] > 0) {
+        if (c != DIAG_NORMAL && b->holm_rank[c] > 0)
             judged++;
-            failed += !b->crit_pass[c];
-        }
     b->summary[0] = 0;
-    if (b->white)
-        say(b, "White noise at alpha %g: no criterion failed (Holm over %d criteria).", b->alpha, judged);
-    else {
-        say(b, "Not white noise at alpha %g (Holm over %d criteria): failed", b->alpha, judged);
+    if (b->white) {
+        say(b, "White noise at alpha %g: all %d judged criteria met (Holm).", b->alpha, judged);
+    } else {
+        say(b, "Not white noise at alpha %g (Holm over %d criteria). Not met:", b->alpha, judged);
         int first = 1;
         for (int c = 0; c < DIAG_NCRIT; c++) {
             if (c == DIAG_NORMAL || b->crit_pass[c])
                 continue;
-            say(b, "%s %s (step %d, p %.2g)", first ? "" : ",", diag_criterion_name((diag_criterion)c),
-                b->holm_rank[c], b->crit_p[c]);
+            say(b, "%s %s (Holm step %d, p %.2g)", first ? "" : ";",
+                diag_criterion_name((diag_criterion)c), b->holm_rank[c], b->crit_p[c]);
             first = 0;
         }
         say(b, ".");
     }
     const diag_criterion sized[2] = { DIAG_SERIAL, DIAG_VOLATILITY };
-    for (int s = 0; s < 2; s++) {
-        diag_criterion c = sized[s];
+    for (int k = 0; k < 2; k++) {
+        diag_criterion c = sized[k];
         double e = crit_effect(b, c);
+        const char *what = k ? "Volatility clustering" : "Serial correlation";
+        const char *on = k ? " of x^2" : "";
         if (!isfinite(e) || b->holm_rank[c] == 0)
             continue;
         if (!b->crit_pass[c] && e < NEGLIGIBLE_SHARE)
-            say(b, " %s: significant but negligible, a long AR%s predicts %.1f%% of the variance.",
-                s ? "Volatility" : "Serial correlation", s ? " on x^2" : "", 100.0 * e);
+            say(b, " %s: significant but negligible (a long AR%s predicts %.1f%% of its variance).",
+                what, on, 100.0 * e);
         else if (b->crit_pass[c] && e >= SIZEABLE_SHARE)
-            say(b, " %s: not significant, yet a long AR%s would predict %.0f%% of the variance;"
-                   " n = %zu is short for a firm verdict.",
-                s ? "Volatility" : "Serial correlation", s ? " on x^2" : "", 100.0 * e, b->n);
+            say(b, " %s: not significant, yet a long AR%s would predict %.0f%% of its variance;"
+                   " n = %zu is short for a firm verdict.", what, on, 100.0 * e, b->n);
     }
     int none = 0;
     for (int c = 0; c < DIAG_NCRIT; c++)
         if (c != DIAG_NORMAL && b->holm_rank[c] == 0) {
-            say(b, "%s %s", none ? "," : " Not judged (no valid check):", diag_criterion_name((diag_criterion)c));
+            say(b, "%s %s", none ? "," : " Not judged (no valid check):",
+                diag_criterion_name((diag_criterion)c));
             none = 1;
         }
     if (none)
@@ -240,7 +240,11 @@ static void write_summary(diag_battery *b, const diag_options *opt)
         say(b, " Normality (not in the verdict): %s, p %.2g.",
             b->crit_pass[DIAG_NORMAL] ? "not rejected" : "rejected", b->crit_p[DIAG_NORMAL]);
     if (opt->standardised)
-        say(b, " McLeod-Li and ARCH-LM df are not reduced for the 2 GARCH variance parameters.");
+        say(b, " McLeod-Li and ARCH-LM df are not reduced for the 2 GARCH parameters.");
+    /* Mark a cut-off summary rather than end it mid-word unannounced. */
+    size_t len = strlen(b->summary);
+    if (len + 1 >= sizeof b->summary)
+        memcpy(b->summary + len - 3, "...", 3);
 }
 
 int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_battery *out)
