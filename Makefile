@@ -55,7 +55,8 @@ check: hone $(TEST_BIN)
 	@HONE=$(CURDIR)/hone BUILD=$(BUILD) sh tests/run.sh
 
 demo: hone
-	./hone demo-data/demand.hone
+	./hone demo-data/bakery.hone
+	./hone demo-data/grain.hone
 
 asan:
 	$(MAKE) BUILD=build-asan OPT='-O1 -g -fno-omit-frame-pointer' \
