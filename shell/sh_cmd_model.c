@@ -44,25 +44,29 @@ static int spec_from_words(sh_session *s, sh_words *w, int wi, fit_spec *spec)
         }
     }
     if (fit_spec_parse(text, spec, err, sizeof err, &pos) != HN_OK) {
-        /* Point at the word holding the offending character. */
-        int word = wi, acc = 0;
+        /* Point at the offending character: find the word that holds it. */
+        int word = wi, acc = 0, within = 0;
         for (int k = 0, i; (i = sh_arg(w, k)) >= 0; k++) {
             int l = (int)strlen(w->word[i]);
-            if (pos <= acc + l) { word = i; break; }
-            acc += l + 1;
             word = i;
+            within = pos - acc;
+            if (pos <= acc + l)
+                break;
+            acc += l + 1;
         }
-        return sh_fail(s, word, "model '%s': %s (at character %d)", text, err, pos + 1);
+        if (within < 0 || within > (int)strlen(w->word[word]))
+            within = 0;
+        sh_fail(s, word, "model '%s': %s (at character %d)", text, err, pos + 1);
+        s->err_offset = within;
+        return -1;
     }
     return 0;
 }
 
 static int cmd_fit(sh_session *s, sh_words *w)
 {
-    if (need_series(s))
-        return -1;
     fit_spec spec;
-    if (spec_from_words(s, w, sh_arg(w, 0), &spec))
+    if (spec_from_words(s, w, sh_arg(w, 0), &spec) || need_series(s))
         return -1;
     size_t need = fit_min_obs(&spec);
     char spec_text[256];

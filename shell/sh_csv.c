@@ -437,8 +437,11 @@ static void choose_columns(reader *R)
             for (int j = 0; j < R->ncols; j++) {
                 if (j == vexp || (pass == 0 && !name_in(R->hdr[j], time_names)))
                     continue;
-                if (sh_time_parse(R->first[j], strlen(R->first[j]), pass == 0, &t, &kind, NULL,
-                                  0) == 0) {
+                const char *c = R->first[j];
+                /* a time-named column whose first cell is neither a time nor a number is
+                 * still taken, so that its bad cell is reported rather than ignored */
+                if (sh_time_parse(c, strlen(c), pass == 0, &t, &kind, NULL, 0) == 0 ||
+                    (pass == 0 && parse_number(c, strlen(c), &v) > NUM_EMPTY)) {
                     R->tcol = j;
                     R->allow_year = pass == 0;
                     break;
@@ -452,6 +455,14 @@ static void choose_columns(reader *R)
     for (int j = 0; j < R->ncols; j++)
         if (j != R->tcol && !name_in(R->hdr[j], index_names) && !name_in(R->hdr[j], time_names) &&
             parse_number(R->first[j], strlen(R->first[j]), &v) == NUM_OK) {
+            R->vcol = j;
+            return;
+        }
+    /* none: take the first column whose first cell is a refused number (decimal
+     * comma, NaN/Inf, out of range, empty), so that the cell itself is reported */
+    for (int j = 0; j < R->ncols; j++)
+        if (j != R->tcol && !name_in(R->hdr[j], index_names) && !name_in(R->hdr[j], time_names) &&
+            parse_number(R->first[j], strlen(R->first[j]), &v) != NUM_TEXT) {
             R->vcol = j;
             return;
         }
@@ -781,8 +792,7 @@ static int apply_policy(reader *R, int policy)
                 double xb = R->st ? (double)R->st[i] : (double)i;
                 for (size_t j = a + 1; j < i; j++) {
                     double x = R->st ? (double)R->st[j] : (double)j;
-                    double w = (x - xa) / (xb - xa);
-                    y[j] = (1.0 - w) * y[a] + w * y[i];
+                    y[j] = y[a] + (y[i] - y[a]) * (x - xa) / (xb - xa);
                 }
             }
             a = i;

@@ -84,58 +84,100 @@ static void set_font(cairo_t *cr, double size, int bold)
     cairo_set_font_size(cr, size);
 }
 
-/* Legend entries are written right to left on the title line. */
-typedef struct {
-    cairo_t *cr;
-    double x, y;
-} legend;
-
+/* Legend entries are collected while a chart is drawn (right to left), then
+ * placed beside the title, or on a line of their own when the title leaves
+ * too little room. */
+#define LEG_MAX 12
 enum { MK_LINE, MK_DASH, MK_BOX, MK_DOT, MK_RING };
+
+typedef struct {
+    int mark;
+    rgb c;
+    double alpha;
+    char label[64];
+} leg_item;
+
+typedef struct {
+    leg_item it[LEG_MAX];
+    int n;
+} legend;
 
 static void leg_add(legend *lg, int mark, rgb c, double alpha, const char *label)
 {
-    cairo_t *cr = lg->cr;
+    if (lg->n >= LEG_MAX)
+        return;
+    leg_item *e = &lg->it[lg->n++];
+    e->mark = mark;
+    e->c = c;
+    e->alpha = alpha;
+    snprintf(e->label, sizeof e->label, "%s", label);
+}
+
+#define LEG_MARK 22.0   /* room for the mark before a label */
+#define LEG_GAP 14.0    /* room between entries */
+
+static double leg_width(cairo_t *cr, const legend *lg)
+{
+    double w = 0.0;
     cairo_text_extents_t te;
     set_font(cr, FONT_SIZE - 1.0, 0);
-    cairo_text_extents(cr, label, &te);
-    double x = lg->x - te.x_advance;
-    colour(cr, INK, 1.0);
-    cairo_move_to(cr, x, lg->y + 4.0);
-    cairo_show_text(cr, label);
-    double mx = x - 22.0, my = lg->y;
-    cairo_new_path(cr);
-    colour(cr, c, alpha);
-    cairo_set_line_width(cr, 2.0);
-    switch (mark) {
-    case MK_DASH: {
-        double d[] = { 4.0, 3.0 };
-        cairo_set_dash(cr, d, 2, 0.0);
-        cairo_move_to(cr, mx, my);
-        cairo_line_to(cr, mx + 18.0, my);
-        cairo_stroke(cr);
-        cairo_set_dash(cr, NULL, 0, 0.0);
-        break;
+    for (int i = 0; i < lg->n; i++) {
+        cairo_text_extents(cr, lg->it[i].label, &te);
+        w += te.x_advance + LEG_MARK + (i ? LEG_GAP : 0.0);
     }
-    case MK_BOX:
-        cairo_rectangle(cr, mx + 2.0, my - 5.0, 14.0, 10.0);
-        cairo_fill(cr);
-        break;
-    case MK_DOT:
-        cairo_arc(cr, mx + 9.0, my, 3.0, 0.0, 2.0 * M_PI);
-        cairo_fill(cr);
-        break;
-    case MK_RING:
-        cairo_set_line_width(cr, 1.3);
-        cairo_arc(cr, mx + 9.0, my, 3.0, 0.0, 2.0 * M_PI);
-        cairo_stroke(cr);
-        break;
-    default:
-        cairo_move_to(cr, mx, my);
-        cairo_line_to(cr, mx + 18.0, my);
-        cairo_stroke(cr);
-        break;
+    return w;
+}
+
+/* Draw the entries right-aligned at RIGHT on the line at Y, none left of LEFT. */
+static void leg_draw(cairo_t *cr, const legend *lg, double right, double left, double y)
+{
+    double x = right;
+    cairo_text_extents_t te;
+    for (int i = 0; i < lg->n; i++) {
+        const leg_item *e = &lg->it[i];
+        set_font(cr, FONT_SIZE - 1.0, 0);
+        cairo_text_extents(cr, e->label, &te);
+        double tx = x - te.x_advance, mx = tx - LEG_MARK;
+        if (mx < left)
+            break;
+        cairo_new_path(cr);
+        colour(cr, INK, 1.0);
+        cairo_move_to(cr, tx, y + 4.0);
+        cairo_show_text(cr, e->label);
+        cairo_new_path(cr);
+        colour(cr, e->c, e->alpha);
+        cairo_set_line_width(cr, 2.0);
+        switch (e->mark) {
+        case MK_DASH: {
+            double d[] = { 4.0, 3.0 };
+            cairo_set_dash(cr, d, 2, 0.0);
+            cairo_move_to(cr, mx, y);
+            cairo_line_to(cr, mx + 18.0, y);
+            cairo_stroke(cr);
+            cairo_set_dash(cr, NULL, 0, 0.0);
+            break;
+        }
+        case MK_BOX:
+            cairo_rectangle(cr, mx + 2.0, y - 5.0, 14.0, 10.0);
+            cairo_fill(cr);
+            break;
+        case MK_DOT:
+            cairo_arc(cr, mx + 9.0, y, 3.0, 0.0, 2.0 * M_PI);
+            cairo_fill(cr);
+            break;
+        case MK_RING:
+            cairo_set_line_width(cr, 1.3);
+            cairo_arc(cr, mx + 9.0, y, 3.0, 0.0, 2.0 * M_PI);
+            cairo_stroke(cr);
+            break;
+        default:
+            cairo_move_to(cr, mx, y);
+            cairo_line_to(cr, mx + 18.0, y);
+            cairo_stroke(cr);
+            break;
+        }
+        x = mx - LEG_GAP;
     }
-    lg->x = mx - 14.0;
 }
 
 /* Frame: background, title, grid, ticks and labels for the ranges in *A.
@@ -156,8 +198,9 @@ static void frame(cairo_t *cr, const sh_chart *c, const axes *a, int logy, int i
         cairo_line_to(cr, a->px1, py);
         cairo_stroke(cr);
         if (logy) {
-            if (v == 0.0) snprintf(buf, sizeof buf, "1");
-            else snprintf(buf, sizeof buf, "1e%d", (int)lround(v));
+            int e = (int)lround(v);
+            if (e >= -3) snprintf(buf, sizeof buf, "%.*f", -e, pow(10.0, e));
+            else snprintf(buf, sizeof buf, "1e%d", e);
         } else {
             fmt_tick(buf, sizeof buf, v, ys);
         }
@@ -608,38 +651,69 @@ static int cairo_rc(cairo_status_t st)
     return st == CAIRO_STATUS_NO_MEMORY ? HN_ENOMEM : HN_EIO;
 }
 
+/* Draw the body of chart C (everything but title and legend) with plot area *A. */
+static void draw_body(cairo_t *cr, const sh_chart *c, axes *a, legend *lg, int *rc)
+{
+    switch (c->kind) {
+    case SH_CHART_LINE:    draw_line(cr, c, a, lg); break;
+    case SH_CHART_CORR:    draw_corr(cr, c, a, lg); break;
+    case SH_CHART_QQ:      draw_qq(cr, c, a, lg, rc); break;
+    case SH_CHART_PROFILE: draw_profile(cr, c, a, lg, rc); break;
+    case SH_CHART_FAN:     draw_fan(cr, c, a, lg); break;
+    }
+}
+
 int sh_draw_chart(cairo_t *cr, const sh_chart *c, double x, double y, double w, double h)
 {
     if (!cr || !c || !(w >= SH_DRAW_MIN_SIZE) || !(h >= SH_DRAW_MIN_SIZE) ||
         (unsigned)c->kind > (unsigned)SH_CHART_FAN)
         return HN_EINVAL;
     int rc = HN_OK;
+    axes a;
+    a.px0 = c->ylabel && *c->ylabel ? 70.0 : 56.0;
+    a.px1 = w - 16.0;
+    a.py0 = 34.0;
+    a.py1 = h - (c->xlabel && *c->xlabel ? 44.0 : 28.0);
+
+    /* A first pass on a one-pixel surface collects the legend, so that the
+     * plot can make room for it before the real drawing. */
+    legend lg = { .n = 0 };
+    cairo_surface_t *ms = cairo_image_surface_create(CAIRO_FORMAT_ARGB32, 1, 1);
+    cairo_t *mc = cairo_create(ms);
+    axes ma = a;
+    draw_body(mc, c, &ma, &lg, &rc);
+    if (rc == HN_OK)
+        rc = cairo_rc(cairo_status(mc));
+    cairo_destroy(mc);
+    cairo_surface_destroy(ms);
+    if (rc != HN_OK)
+        return rc;
+
     cairo_save(cr);
     cairo_translate(cr, x, y);
     cairo_rectangle(cr, 0.0, 0.0, w, h);
     cairo_clip(cr);
     colour(cr, PAPER, 1.0);
     cairo_paint(cr);
-    int has_title = c->title && *c->title;
-    if (has_title) {
+    double title_end = 0.0;
+    if (c->title && *c->title) {
+        cairo_text_extents_t te;
         colour(cr, INK, 1.0);
         set_font(cr, TITLE_SIZE, 1);
+        cairo_text_extents(cr, c->title, &te);
         cairo_move_to(cr, 12.0, 20.0);
         cairo_show_text(cr, c->title);
+        title_end = 12.0 + te.x_advance;
     }
-    axes a;
-    a.px0 = c->ylabel && *c->ylabel ? 70.0 : 56.0;
-    a.px1 = w - 16.0;
-    a.py0 = 34.0;
-    a.py1 = h - (c->xlabel && *c->xlabel ? 44.0 : 28.0);
-    legend lg = { cr, w - 16.0, 16.0 };
-    switch (c->kind) {
-    case SH_CHART_LINE:    draw_line(cr, c, &a, &lg); break;
-    case SH_CHART_CORR:    draw_corr(cr, c, &a, &lg); break;
-    case SH_CHART_QQ:      draw_qq(cr, c, &a, &lg, &rc); break;
-    case SH_CHART_PROFILE: draw_profile(cr, c, &a, &lg, &rc); break;
-    case SH_CHART_FAN:     draw_fan(cr, c, &a, &lg); break;
+    double lw = leg_width(cr, &lg), ly = 16.0, lleft = title_end + 16.0;
+    if (lg.n > 0 && lleft + lw > w - 16.0) {
+        ly = 36.0;          /* a line of its own below the title */
+        lleft = 12.0;
+        a.py0 += 18.0;
     }
+    leg_draw(cr, &lg, w - 16.0, lleft, ly);
+    lg.n = 0;
+    draw_body(cr, c, &a, &lg, &rc);
     cairo_restore(cr);
     if (rc == HN_OK)
         rc = cairo_rc(cairo_status(cr));

@@ -48,6 +48,7 @@ int sh_fail(sh_session *s, int word, const char *fmt, ...)
     vsnprintf(s->err, sizeof s->err, fmt, ap);
     va_end(ap);
     s->err_word = word;
+    s->err_offset = 0;
     return -1;
 }
 
@@ -161,7 +162,7 @@ static void report_error(sh_session *s, const char *line, const sh_words *w, con
     else
         fprintf(stderr, "error: %s\n", s->err);
     if (s->err_word >= 0 && s->err_word < w->n) {
-        int off = w->offset[s->err_word];
+        int off = w->offset[s->err_word] + s->err_offset;
         fprintf(stderr, "  %s\n  %*s^\n", line, off, "");
     }
 }

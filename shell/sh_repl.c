@@ -223,6 +223,7 @@ int sh_run_interactive(sh_session *s)
     const char *hist = history_path(hbuf, sizeof hbuf);
     rl_readline_name = "hone";
     rl_attempted_completion_function = complete;
+    rl_completer_word_break_characters = " \t\n";   /* keep KEY=VALUE in one word */
     rl_signal_event_hook = idle_interrupt_hook;
     using_history();
     if (hist && read_history(hist) != 0)

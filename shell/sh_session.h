@@ -61,6 +61,7 @@ typedef struct sh_session {
     sh_json j;                  /* JSON object of the current command */
     char err[1024];             /* error message of the current command */
     int err_word;               /* word the error points at, -1 none */
+    int err_offset;             /* extra byte offset within that word for the caret */
     int quit;                   /* set by quit */
     struct sh_journal *journal; /* NULL unless recording */
     int replaying;              /* nesting guard for replay */

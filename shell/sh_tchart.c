@@ -715,11 +715,12 @@ static int draw_profile(canvas *cv, const sh_chart *c)
     frame_draw(cv, c, &f, &yl, 1);
     if (c->alpha > 0.0)
         hline_at(cv, &f, ya, C_ALERT);
-    int nshow = (int)m, nbelow = 0;
+    int nshow = (int)m, nbelow = 0, nfinite = 0;
     for (int i = 0; i < nshow; i++) {
         double v = p[i];
         if (!isfinite(v))
             continue;
+        nfinite++;
         int below = c->alpha > 0.0 && v < c->alpha;
         double y = c->log_scale ? (v > floorv ? log10(v) : log10(floorv)) : v;
         int r = row_of(&f, y), col = f.left + lag_col(&f, i, nshow);
@@ -735,7 +736,7 @@ static int draw_profile(canvas *cv, const sh_chart *c)
     if (c->alpha > 0.0) {
         char buf[32];
         fmt_num(buf, sizeof buf, c->alpha);
-        leg_add(&lg, g->solid, C_ALERT, "below %s: %d of %d", buf, nbelow, nshow);
+        leg_add(&lg, g->solid, C_ALERT, "below %s: %d of %d", buf, nbelow, nfinite);
     }
     if (c->log_scale)
         leg_add(&lg, NULL, C_NONE, "log scale");
