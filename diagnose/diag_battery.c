@@ -57,42 +57,65 @@ typedef struct {
     double alpha;
 } run_ctx;
 
-typedef int (*check_fn)(const run_ctx *c, diag_test *out);
+/* The argument shapes of the checks in diag_checks.h. */
+typedef int (*fn_plain)(const double *x, size_t n, double alpha, diag_test *out);
+typedef int (*fn_blocks)(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out);
+typedef int (*fn_lags)(const double *x, size_t n, int lags, double alpha, diag_test *out);
+typedef int (*fn_lags_adj)(const double *x, size_t n, int m, int df_adjust, double alpha,
+                           diag_test *out);
+typedef int (*fn_moments)(const double *x, size_t n, double alpha, diag_test *out, double *skewness,
+                          double *excess_kurtosis);
 
-static int run_mean(const run_ctx *c, diag_test *o) { return diag_mean_ttest(c->x, c->n, c->alpha, o); }
-static int run_bf(const run_ctx *c, diag_test *o) { return diag_brown_forsythe_blocks(c->x, c->n, c->nblocks, c->alpha, o); }
-static int run_anova(const run_ctx *c, diag_test *o) { return diag_anova_blocks(c->x, c->n, c->nblocks, c->alpha, o); }
-static int run_lb(const run_ctx *c, diag_test *o) { return diag_ljung_box(c->x, c->n, c->m, c->df_adjust, c->alpha, o); }
-static int run_bp(const run_ctx *c, diag_test *o) { return diag_box_pierce(c->x, c->n, c->m, c->df_adjust, c->alpha, o); }
-static int run_cp(const run_ctx *c, diag_test *o) { return diag_cum_periodogram(c->x, c->n, c->alpha, o); }
-static int run_ml(const run_ctx *c, diag_test *o) { return diag_mcleod_li(c->x, c->n, c->m, c->alpha, o); }
-static int run_arch(const run_ctx *c, diag_test *o) { return diag_arch_lm(c->x, c->n, c->arch_q, c->alpha, o); }
-static int run_runs(const run_ctx *c, diag_test *o) { return diag_runs_test(c->x, c->n, c->alpha, o); }
-static int run_tp(const run_ctx *c, diag_test *o) { return diag_turning_points(c->x, c->n, c->alpha, o); }
-static int run_jb(const run_ctx *c, diag_test *o)
-{
-    double skew, kurt;
-    return diag_jarque_bera(c->x, c->n, c->alpha, o, &skew, &kurt);
-}
+typedef enum {
+    ARG_PLAIN,      /* (x, n, alpha, out) */
+    ARG_BLOCKS,     /* (x, n, nblocks, alpha, out) */
+    ARG_M,          /* (x, n, m, alpha, out): portmanteau lags, no adjustment */
+    ARG_M_ADJ,      /* (x, n, m, df_adjust, alpha, out) */
+    ARG_ARCH_Q,     /* (x, n, q, alpha, out): ARCH-LM lags */
+    ARG_MOMENTS     /* (x, n, alpha, out, &skewness, &excess_kurtosis) */
+} arg_kind;
 
-/* The battery: one line per check, in the order they are reported. */
+/* The battery: one line per check, in the order they are reported.  A new
+ * check with one of the shapes above is one more line here. */
 static const struct {
     diag_criterion criterion;
-    check_fn run;
+    arg_kind kind;
+    union {
+        fn_plain plain;
+        fn_blocks blocks;
+        fn_lags lags;
+        fn_lags_adj lags_adj;
+        fn_moments moments;
+    } f;
 } CHECKS[] = {
-    { DIAG_MEAN, run_mean },
-    { DIAG_VARIANCE, run_bf },
-    { DIAG_VARIANCE, run_anova },
-    { DIAG_SERIAL, run_lb },
-    { DIAG_SERIAL, run_bp },
-    { DIAG_SERIAL, run_cp },
-    { DIAG_VOLATILITY, run_ml },
-    { DIAG_VOLATILITY, run_arch },
-    { DIAG_RANDOM, run_runs },
-    { DIAG_RANDOM, run_tp },
-    { DIAG_NORMAL, run_jb },
+    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce } },
+    { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram } },
+    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li } },
+    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points } },
+    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera } },
 };
 #define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
+
+/* Run entry I of the table with the arguments its shape takes. */
+static int run_check(size_t i, const run_ctx *c, diag_test *t)
+{
+    double skew, kurt;
+    switch (CHECKS[i].kind) {
+    case ARG_PLAIN:   return CHECKS[i].f.plain(c->x, c->n, c->alpha, t);
+    case ARG_BLOCKS:  return CHECKS[i].f.blocks(c->x, c->n, c->nblocks, c->alpha, t);
+    case ARG_M:       return CHECKS[i].f.lags(c->x, c->n, c->m, c->alpha, t);
+    case ARG_M_ADJ:   return CHECKS[i].f.lags_adj(c->x, c->n, c->m, c->df_adjust, c->alpha, t);
+    case ARG_ARCH_Q:  return CHECKS[i].f.lags(c->x, c->n, c->arch_q, c->alpha, t);
+    case ARG_MOMENTS: return CHECKS[i].f.moments(c->x, c->n, c->alpha, t, &skew, &kurt);
+    }
+    return HN_EINVAL;
+}
 
 /* Append formatted text to the summary, silently stopping at its end. */
 static void say(diag_battery *b, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
@@ -328,7 +351,7 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha };
     for (size_t i = 0; i < NCHECKS && out->ntests < DIAG_MAX_TESTS; i++) {
         diag_test *t = &out->tests[out->ntests++];
-        rc = CHECKS[i].run(&ctx, t);
+        rc = run_check(i, &ctx, t);
         if (rc == HN_ENOMEM) {
             diag_battery_free(out);
             return HN_ENOMEM;

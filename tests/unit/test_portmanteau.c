@@ -44,6 +44,10 @@ static void test_chisq_table(void **state)
                 print_error("df %g alpha %g point %.4f: tail %.8g .. %.8g\n", df, alpha[a], x, lo, hi);
             assert_true(hi >= alpha[a] && lo <= alpha[a]);
         }
+        p = strchr(p, ',');
+        assert_non_null(p);
+        p[1 + strcspn(p + 1, "\r\n")] = 0;
+        assert_string_equal(p + 1, "secondary-web-table");
         rows++;
     }
     fclose(f);
