@@ -46,8 +46,10 @@ void sh_text_fit(sh_session *s, const sh_model *m)
     sh_printf(s, "  data   %s\n", m->series);
     sh_printf(s, "  sample n = %zu, N = %zu in the likelihood after %zu conditioning value%s\n", f->n,
               f->n_eff, f->start, f->start == 1 ? "" : "s");
-    if (f->n_ar_roots || f->n_ma_roots || f->spec.mean)
+    if (f->spec.mean)
         sh_printf(s, "  form   y_t - mu = sum ar_i (y_{t-i} - mu) + e_t + sum ma_j e_{t-j}\n");
+    else
+        sh_printf(s, "  form   y_t = sum ar_i y_{t-i} + e_t + sum ma_j e_{t-j}   (mean fixed at 0)\n");
     if (f->spec.garch)
         sh_printf(s, "         sigma2_t = omega + alpha1 e2_{t-1} + beta1 sigma2_{t-1}, sigma2_0 = e2_0 = mean e2\n");
     sh_printf(s, "\n  %-10s %14s %12s %9s%s\n", "parameter", "estimate", robust ? "robust se" : "std error",
