@@ -37,24 +37,21 @@ int fit_tr_mean(const double *y, size_t n, double *mean, size_t *bad)
     }
     double m = (s + c) / (double)n;
     if (!isfinite(m)) {
-        /* the sum overflowed: average scaled values instead */
-        m = 0.0;
-        for (size_t i = 0; i < n; i++)
-            m += y[i] / (double)n;
+        /* the sum overflowed: add the values divided by n, again compensated */
+        s = 0.0, c = 0.0;
+        for (size_t i = 0; i < n; i++) {
+            double x = y[i] / (double)n, t = s + x;
+            if (fabs(s) >= fabs(x))
+                c += (s - t) + x;
+            else
+                c += (x - t) + s;
+            s = t;
+        }
+        m = s + c;
     }
-    /* second pass: the residuals about m sum to n times the error of m */
-    double r = 0.0;
-    c = 0.0;
-    for (size_t i = 0; i < n; i++) {
-        double d = y[i] - m;
-        double t = r + d;
-        if (fabs(r) >= fabs(d))
-            c += (r - t) + d;
-        else
-            c += (d - t) + r;
-        r = t;
-    }
-    *mean = m + (r + c) / (double)n;
+    /* no second pass over y - m: with a compensated first pass it cannot improve the
+     * result, and residuals such as 1e16 - 0.5 are themselves rounded */
+    *mean = m;
     return HN_OK;
 }
 

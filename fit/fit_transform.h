@@ -12,8 +12,9 @@
  *  - Inputs must be finite: a NaN or infinite value gives HN_EINVAL and,
  *    when BAD is not NULL, its 0-based index in *BAD. */
 
-/* Mean of Y[0..N-1], accurate to about one rounding: compensated
- * (Neumaier) sum, then a second pass adding the mean residual.  Returns HN_OK
+/* Mean of Y[0..N-1] from a compensated (Neumaier) sum, accurate to about
+ * one rounding even under heavy cancellation; when the sum would overflow,
+ * the values are divided by N first.  Returns HN_OK
  * and *MEAN, HN_ESHORT when N is 0, HN_EINVAL for non-finite values. */
 int fit_tr_mean(const double *y, size_t n, double *mean, size_t *bad);
 
