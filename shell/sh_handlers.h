@@ -10,5 +10,6 @@ extern const sh_command sh_cmds_data[];     /* load, series, transform */
 extern const sh_command sh_cmds_model[];    /* fit, check, models, use */
 extern const sh_command sh_cmds_sim[];      /* simulate */
 extern const sh_command sh_cmds_misc[];     /* set, help, quit */
+extern const sh_command sh_cmds_advise[];   /* advise, step, refine, scan */
 
 #endif
