@@ -3,6 +3,7 @@
 #include "sh_cmd.h"
 #include "sh_journal.h"
 #include "hn_status.h"
+#include "fit_forecast.h"
 
 #include <stdarg.h>
 #include <stdlib.h>
@@ -33,6 +34,7 @@ void sh_session_free(sh_session *s)
     for (int i = 0; i < s->nmodels; i++)
         free_model(&s->models[i]);
     free(s->models);
+    fit_forecast_free(s->last_forecast);
     free(s->raw);
     free(s->y);
     sh_json_free(&s->j);
@@ -90,9 +92,29 @@ sh_model *sh_add_model(sh_session *s, fit_result *fit, int parent, const char *o
     memset(fit, 0, sizeof *fit);
     m->parent = parent;
     snprintf(m->origin, sizeof m->origin, "%s", origin ? origin : "");
-    snprintf(m->series, sizeof m->series, "%.200s%s%.100s%s%.180s", s->path, *s->column ? " column " : "",
-             s->column, *s->transforms ? ", " : "", s->transforms);
+    sh_series_label(s, m->series, sizeof m->series);
     s->current = s->nmodels++;
+    return m;
+}
+
+char *sh_series_label(const sh_session *s, char *buf, size_t len)
+{
+    snprintf(buf, len, "%.200s%s%.100s%s%.180s", s->path, *s->column ? " column " : "", s->column,
+             *s->transforms ? ", " : "", s->transforms);
+    return buf;
+}
+
+sh_model *sh_current_model_on_series(sh_session *s)
+{
+    sh_model *m = sh_current_model(s);
+    char now[512];
+    if (!m)
+        return NULL;
+    if (m->fit.n != s->n || strcmp(m->series, sh_series_label(s, now, sizeof now))) {
+        sh_fail(s, -1, "model %d was fitted to %s, not to the working series now (%s): "
+                "refit, or undo the transforms", m->id, m->series, now);
+        return NULL;
+    }
     return m;
 }
 

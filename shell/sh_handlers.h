@@ -8,7 +8,10 @@
 
 extern const sh_command sh_cmds_data[];     /* load, series, transform */
 extern const sh_command sh_cmds_model[];    /* fit, check, models, use */
+extern const sh_command sh_cmds_forecast[]; /* forecast, holdout */
 extern const sh_command sh_cmds_sim[];      /* simulate */
+extern const sh_command sh_cmds_audit[];    /* record, note, replay */
+extern const sh_command sh_cmds_output[];   /* plot, save, report */
 extern const sh_command sh_cmds_misc[];     /* set, help, quit */
 extern const sh_command sh_cmds_advise[];   /* advise, step, refine, scan */
 

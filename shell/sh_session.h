@@ -64,6 +64,8 @@ typedef struct sh_session {
     int err_offset;             /* extra byte offset within that word for the caret */
     int quit;                   /* set by quit */
     struct sh_journal *journal; /* NULL unless recording */
+    void *last_forecast;        /* fit_forecast * of the last 'forecast' command (owned), or NULL */
+    int last_forecast_model;    /* id of the model it came from */
     int replaying;              /* nesting guard for replay */
 } sh_session;
 
@@ -89,6 +91,13 @@ sh_model *sh_current_model(sh_session *s);
 
 /* Append a fitted model (takes ownership of *FIT); returns it. */
 sh_model *sh_add_model(sh_session *s, fit_result *fit, int parent, const char *origin);
+
+/* Text naming the working series (file, column, transforms) into BUF. */
+char *sh_series_label(const sh_session *s, char *buf, size_t len);
+
+/* The current model if it was fitted to the present working series;
+ * otherwise NULL with an error set (the caller returns -1). */
+sh_model *sh_current_model_on_series(sh_session *s);
 
 /* Replace the working series (takes ownership of Y). */
 void sh_set_series(sh_session *s, double *y, size_t n);
