@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include <gsl/gsl_cdf.h>
+#include <gsl/gsl_fft_complex.h>
 #include <gsl/gsl_fft_real.h>
 
 static const char SERIAL_EFFECT[] =
@@ -97,20 +98,22 @@ static int serial_common(const double *x, size_t n, int m, double alpha, double 
 
     double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt((double)n);
     size_t used = 0;
-    int count = 0;
+    int count = 0, cut = 0;
     lags[0] = 0;
     for (int k = 1; k <= m; k++) {
         if (fabs(acf[k - 1]) <= band)
             continue;
         count++;
+        if (cut)
+            continue;
         char item[48];
         int w = snprintf(item, sizeof item, "%s%d (%.3f)", count > 1 ? ", " : "", k, acf[k - 1]);
         if (w > 0 && used + (size_t)w + 5 < lagslen) {
             memcpy(lags + used, item, (size_t)w + 1);
             used += (size_t)w;
-        } else if (used + 5 < lagslen && strcmp(lags + (used >= 4 ? used - 4 : 0), " ...") != 0) {
-            memcpy(lags + used, " ...", 5);
-            used += 4;
+        } else {
+            memcpy(lags + used, " ...", 5);   /* room for it was kept above */
+            cut = 1;
         }
     }
     if (count == 0)
@@ -213,6 +216,90 @@ double diag_kolmogorov_q(double l)
     return s < 0.0 ? 0.0 : (s > 1.0 ? 1.0 : s);
 }
 
+/* Largest prime factor of n (n >= 2), by trial division. */
+static size_t largest_prime_factor(size_t n)
+{
+    size_t p = 1;
+    for (size_t f = 2; f <= n / f; f++)
+        while (n % f == 0) {
+            p = f;
+            n /= f;
+        }
+    return n > 1 ? n : p;
+}
+
+/* |X_j|^2 for j = 1..q of the DFT X_j = sum_t d_t exp(-2 pi i j t / n),
+ * into I[0..q-1].  D is overwritten.  Lengths whose prime factors are all
+ * small go through GSL's mixed-radix real FFT; others (GSL's general-factor
+ * code is O(n p) for a prime factor p) through Bluestein's chirp-z identity
+ * jt = (j^2 + t^2 - (j-t)^2)/2 as a circular convolution of length
+ * L = 2^k >= 2n - 1 done with GSL's radix-2 complex FFT; the outer chirp has
+ * modulus 1 and drops out of |X_j|^2.  Returns HN_OK, HN_ENOMEM or
+ * HN_ENUMERIC. */
+static int periodogram(double *d, size_t n, size_t q, double *I)
+{
+    if (largest_prime_factor(n) <= 97) {
+        gsl_fft_real_wavetable *wt = gsl_fft_real_wavetable_alloc(n);
+        gsl_fft_real_workspace *ws = gsl_fft_real_workspace_alloc(n);
+        int rc = HN_OK;
+        if (!wt || !ws)
+            rc = HN_ENOMEM;
+        else if (gsl_fft_real_transform(d, 1, n, wt, ws) != 0)
+            rc = HN_ENUMERIC;
+        else /* half-complex layout: Re X_j = d[2j-1], Im X_j = d[2j] */
+            for (size_t j = 1; j <= q; j++)
+                I[j - 1] = d[2 * j - 1] * d[2 * j - 1] + d[2 * j] * d[2 * j];
+        if (wt)
+            gsl_fft_real_wavetable_free(wt);
+        if (ws)
+            gsl_fft_real_workspace_free(ws);
+        return rc;
+    }
+    size_t L = 1;
+    while (L < 2 * n - 1)
+        L <<= 1;
+    double *a = calloc(2 * L, sizeof *a), *b = calloc(2 * L, sizeof *b);
+    if (!a || !b) {
+        free(a);
+        free(b);
+        return HN_ENOMEM;
+    }
+    unsigned long long two_n = 2ULL * (unsigned long long)n;
+    for (size_t t = 0; t < n; t++) {
+        /* exp(-i pi t^2 / n), with t^2 reduced mod 2n first for accuracy */
+        unsigned long long tt = ((unsigned long long)t * (unsigned long long)t) % two_n;
+        double th = M_PI * (double)tt / (double)n;
+        double c = cos(th), sn = sin(th);
+        a[2 * t] = d[t] * c;
+        a[2 * t + 1] = -d[t] * sn;
+        b[2 * t] = c;
+        b[2 * t + 1] = sn;
+        if (t > 0) {
+            b[2 * (L - t)] = c;
+            b[2 * (L - t) + 1] = sn;
+        }
+    }
+    int rc = HN_OK;
+    if (gsl_fft_complex_radix2_forward(a, 1, L) != 0 || gsl_fft_complex_radix2_forward(b, 1, L) != 0)
+        rc = HN_ENUMERIC;
+    if (rc == HN_OK) {
+        for (size_t k = 0; k < L; k++) {
+            double re = a[2 * k] * b[2 * k] - a[2 * k + 1] * b[2 * k + 1];
+            double im = a[2 * k] * b[2 * k + 1] + a[2 * k + 1] * b[2 * k];
+            a[2 * k] = re;
+            a[2 * k + 1] = im;
+        }
+        if (gsl_fft_complex_radix2_inverse(a, 1, L) != 0)
+            rc = HN_ENUMERIC;
+    }
+    if (rc == HN_OK)
+        for (size_t j = 1; j <= q; j++)
+            I[j - 1] = a[2 * j] * a[2 * j] + a[2 * j + 1] * a[2 * j + 1];
+    free(a);
+    free(b);
+    return rc;
+}
+
 /* Bartlett's cumulative periodogram test.
  * Periodogram I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 at the Fourier
  * frequencies f_j = j/n, j = 1..q, q = floor((n-1)/2): frequency 0 (the mean,
@@ -237,10 +324,8 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
     }
     size_t q = (n - 1) / 2, M = q - 1;
     double *d = malloc(n * sizeof *d), *I = malloc(q * sizeof *I);
-    gsl_fft_real_wavetable *wt = gsl_fft_real_wavetable_alloc(n);
-    gsl_fft_real_workspace *ws = gsl_fft_real_workspace_alloc(n);
     int rc = HN_OK;
-    if (!d || !I || !wt || !ws) {
+    if (!d || !I) {
         rc = HN_ENOMEM;
         diag_test_invalid(out, name, DIAG_SERIAL, "out of memory");
         goto done;
@@ -250,16 +335,15 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
         diag_test_invalid(out, name, DIAG_SERIAL, "a value is not finite");
         goto done;
     }
-    if (gsl_fft_real_transform(d, 1, n, wt, ws) != 0) {
-        rc = HN_EINVAL;
-        diag_test_invalid(out, name, DIAG_SERIAL, "the Fourier transform failed");
+    rc = periodogram(d, n, q, I);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_SERIAL,
+                          rc == HN_ENOMEM ? "out of memory" : "the Fourier transform failed");
+        rc = rc == HN_ENOMEM ? HN_ENOMEM : HN_EINVAL;
         goto done;
     }
-    /* Mixed-radix half-complex layout: Re X_j = d[2j-1], Im X_j = d[2j]. */
     double total = 0.0, comp = 0.0;
     for (size_t j = 1; j <= q; j++) {
-        double re = d[2 * j - 1], im = d[2 * j];
-        I[j - 1] = re * re + im * im;
         double y = I[j - 1] - comp, t = total + y;
         comp = (t - total) - y;
         total = t;
@@ -306,9 +390,5 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
 done:
     free(d);
     free(I);
-    if (wt)
-        gsl_fft_real_wavetable_free(wt);
-    if (ws)
-        gsl_fft_real_workspace_free(ws);
     return rc;
 }

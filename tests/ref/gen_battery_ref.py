@@ -8,7 +8,7 @@ the checkout:
 
     /usr/bin/python3 tests/ref/gen_battery_ref.py
 
-It writes the inputs tests/data/wn200.csv and tests/data/ar1_120.csv
+It writes the inputs tests/data/wn200.csv, ar1_120.csv and t5_211.csv
 (numpy default_rng, seeds below; simulated inputs, the reference values are
 scipy's) and tests/ref/battery_ref.csv with columns
     what,input,a,b,value
@@ -45,7 +45,9 @@ def make_inputs():
     for t in range(1, len(e)):
         ar[t] = 0.4 * ar[t - 1] + e[t]
     ar = 10.0 + ar[50:]
-    series = {"wn200.csv": wn, "ar1_120.csv": ar}
+    rng = np.random.default_rng(20261203)
+    wn211 = rng.standard_t(5, 211)   # prime length, heavy tails
+    series = {"wn200.csv": wn, "ar1_120.csv": ar, "t5_211.csv": wn211}
     os.makedirs(DATA, exist_ok=True)
     for name, x in series.items():
         with open(os.path.join(DATA, name), "w") as f:

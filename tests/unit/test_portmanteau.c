@@ -6,6 +6,8 @@
 
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_multifit.h>
+#include <gsl/gsl_randist.h>
+#include <gsl/gsl_rng.h>
 
 /* Open a file under the reference directory. */
 static FILE *ref_open(const char *ref, const char *rel, char *path, size_t len)
@@ -285,6 +287,58 @@ static void test_detail(void **state)
     assert_non_null(strstr(d.detail, "1 (-0."));
     assert_true(d.effect > 0.5);
     assert_non_null(d.effect_label);
+    /* Too many lags to list: the list ends in "..." inside the buffer. */
+    assert_int_equal(diag_ljung_box(x, 64, 60, 0, 0.05, &d), HN_OK);
+    assert_non_null(strstr(d.detail, " ..."));
+    assert_true(strlen(d.detail) < sizeof d.detail - 1);
+}
+
+/* Both periodogram routes (GSL mixed radix for n = 1000 = 2^3 5^3; the
+ * chirp-z route for the primes n = 1009 and 4099) against the defining sum
+ * I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 evaluated term by term here
+ * (angles reduced mod n), on Gaussian data (GSL mt19937 seed 31).  The KS
+ * distance must agree to 1e-10. */
+static void test_periodogram_routes(void **state)
+{
+    (void)state;
+    const size_t ns[3] = { 1000, 1009, 4099 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 31UL);
+    for (int s = 0; s < 3; s++) {
+        size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
+        double *x = malloc(n * sizeof *x), *I = malloc(q * sizeof *I);
+        assert_non_null(x);
+        assert_non_null(I);
+        double mean = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            x[t] = gsl_ran_gaussian(r, 1.0) + (t % 7 == 0 ? 0.5 : 0.0);
+            mean += x[t];
+        }
+        mean /= (double)n;
+        double total = 0.0;
+        for (size_t j = 1; j <= q; j++) {
+            double re = 0.0, im = 0.0;
+            for (size_t t = 0; t < n; t++) {
+                double th = 2.0 * M_PI * (double)((j * t) % n) / (double)n;
+                re += (x[t] - mean) * cos(th);
+                im -= (x[t] - mean) * sin(th);
+            }
+            I[j - 1] = re * re + im * im;
+            total += I[j - 1];
+        }
+        double cum = 0.0, D = 0.0;
+        for (size_t j = 1; j <= M; j++) {
+            cum += I[j - 1];
+            double c = cum / total;
+            D = fmax(D, fmax((double)j / (double)M - c, c - (double)(j - 1) / (double)M));
+        }
+        diag_test t;
+        assert_int_equal(diag_cum_periodogram(x, n, 0.05, &t), HN_OK);
+        TU_NEAR(t.statistic, D, 1e-10);
+        free(x);
+        free(I);
+    }
+    gsl_rng_free(r);
 }
 
 int main(void)
@@ -297,6 +351,7 @@ int main(void)
         cmocka_unit_test(test_against_scipy),
         cmocka_unit_test(test_refusals),
         cmocka_unit_test(test_detail),
+        cmocka_unit_test(test_periodogram_routes),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
