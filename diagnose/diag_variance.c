@@ -259,7 +259,7 @@ static void describe_blocks(const double *d, const size_t *sizes, size_t nb, siz
                      b + 1, start + 1, start + m, sref > 0.0 ? bs[b] / sref : 0.0);
         }
         if (out) {
-            append(list, 150, item);
+            append(list, 120, item);
             flagged++;
         }
         start += m;

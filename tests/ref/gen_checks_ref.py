@@ -76,11 +76,12 @@ def arch_lm(x, q):
     return rows * r2, r2
 
 
-def adf_tau(y, k, case):
-    """t of y_{t-1} in dy_t on y_{t-1}, dy_{t-1..t-k}, [1], [t] (t the 0-based index)."""
+def adf_tau(y, k, case, first=None, which=0):
+    """t of y_{t-1} (WHICH = 0) or of the last lag (WHICH = k) in
+    dy_t on y_{t-1}, dy_{t-1..t-k}, [1], [t] (t the 0-based index), rows t = FIRST..n-1."""
     n = len(y)
     dy = np.diff(y, prepend=np.nan)
-    rows = range(k + 1, n)
+    rows = range(k + 1 if first is None else first, n)
     cols = [[y[t - 1] for t in rows]]
     for j in range(1, k + 1):
         cols.append([dy[t - j] for t in rows])
@@ -94,7 +95,21 @@ def adf_tau(y, k, case):
     u = v - X @ b
     s2 = np.dot(u, u) / (X.shape[0] - X.shape[1])
     cov = s2 * np.linalg.inv(X.T @ X)
-    return b[0] / np.sqrt(cov[0, 0]), X.shape[0]
+    return b[which] / np.sqrt(cov[which, which]), X.shape[0]
+
+
+def adf_auto(y, case):
+    """Lag by the rule of diag_adf: kmax = floor(12 (n/100)^(1/4)) (capped so
+    that 10 residual df remain), drop the last lag while |t| < 1.645 on the
+    common sample t = kmax+1..n-1, refit the chosen k on all its rows."""
+    n = len(y)
+    det = case
+    kmax = min(int(np.floor(12.0 * (n / 100.0) ** 0.25)), (n - 12 - det) // 2)
+    k = kmax
+    while k > 0 and abs(adf_tau(y, k, case, first=kmax + 1, which=k)[0]) <= 1.645:
+        k -= 1
+    tau, T = adf_tau(y, k, case)
+    return k, tau, T
 
 
 def kpss_eta(y, l, trend):
@@ -140,6 +155,10 @@ def main():
     for case, name in ((0, "none"), (1, "const"), (2, "trend")):
         tau, T = adf_tau(walk, 2, case)
         rows += [("adf_%s_k2_tau" % name, tau), ("adf_%s_k2_T" % name, T)]
+    for case, name in ((1, "const"), (2, "trend")):
+        for col, series in (("walk", walk), ("arch", x)):
+            k, tau, T = adf_auto(series, case)
+            rows += [("adf_%s_auto_%s_k" % (name, col), k), ("adf_%s_auto_%s_tau" % (name, col), tau)]
     rows += [("kpss_level_l4_eta", kpss_eta(walk, 4, False)),
              ("kpss_trend_l4_eta", kpss_eta(walk, 4, True)),
              ("kpss_level_l4_eta_arch", kpss_eta(x, 4, False))]

@@ -179,6 +179,35 @@ static void test_statistics_vs_numpy(void **state)
     free(x);
 }
 
+/* The lag rule (Schwert maximum, general-to-specific on the common sample,
+ * refit) against the same rule written with numpy least squares. */
+static void test_lag_rule_vs_numpy(void **state)
+{
+    (void)state;
+    const char *cols[2] = {"arch", "walk"};
+    const char *cases[2] = {"const", "trend"};
+    diag_ur_test t;
+    for (int col = 0; col < 2; col++) {
+        double *y;
+        size_t n = tu_read_column("tests/data/checks_series.csv", col, &y);
+        assert_int_equal(n, 200);
+        for (int c = 0; c < 2; c++) {
+            char q[64];
+            assert_int_equal(diag_adf(y, n, c ? DIAG_ADF_TREND : DIAG_ADF_CONST, -1, 0.05, &t), HN_OK);
+            assert_int_equal(t.max_lags, 14);   /* floor(12 * 2^(1/4)) */
+            snprintf(q, sizeof q, "adf_%s_auto_%s_k", cases[c], cols[col]);
+            assert_int_equal(t.lags, (int)ref_value(q));
+            snprintf(q, sizeof q, "adf_%s_auto_%s_tau", cases[c], cols[col]);
+            double want = ref_value(q);
+            if (!(fabs(t.statistic - want) <= 1e-10 * fabs(want)))
+                print_error("%s: %.17g vs %.17g\n", q, t.statistic, want);
+            assert_true(fabs(t.statistic - want) <= 1e-10 * fabs(want));
+            assert_int_equal(t.nobs, n - 1 - (size_t)t.lags);
+        }
+        free(y);
+    }
+}
+
 /* Empirical quantiles of the statistics under their nulls against the
  * published critical values: Dickey-Fuller tau (constant, no lags, n = 100,
  * random walks) at 5 % vs MacKinnon C(T); KPSS eta (level and trend, l = 0,
@@ -339,6 +368,7 @@ int main(void)
         cmocka_unit_test(test_kpss_constants_match_table),
         cmocka_unit_test(test_adf_critical_vs_fuller),
         cmocka_unit_test(test_statistics_vs_numpy),
+        cmocka_unit_test(test_lag_rule_vs_numpy),
         cmocka_unit_test(test_null_quantiles),
         cmocka_unit_test(test_walk_and_ar1_classified),
         cmocka_unit_test(test_p_values),
