@@ -1,5 +1,6 @@
 /* fit_garch.c - joint ARMA mean and GARCH(1,1) variance by conditional ML. */
 #include "fit_garch.h"
+#include "fit_arma.h"
 #include "fit_garch_lik.h"
 #include "fit_internal.h"
 #include "fit_optim.h"
@@ -11,8 +12,6 @@
 #include <string.h>
 
 #include <lapacke.h>
-
-#include "fit_arma.h"
 
 /* Unconstrained parameters x seen by the optimiser (natural theta in fit_spec.h order):
  *   mean terms    x = theta / scale    (mu scaled by the sd of y, AR/MA as they are)
@@ -37,6 +36,13 @@ typedef struct {
     double *theta;              /* np natural parameters (scratch) */
     double *gth;                /* np natural gradient (scratch) */
     double *scale;              /* np scales of the natural parameters (Hessian) */
+    const double *L;            /* preconditioner: lower Cholesky factor (np x np) of an
+                                   approximate Hessian in x, or NULL */
+    const double *x0;           /* origin of the preconditioned coordinates */
+    double *xz, *gz;            /* np scratch each for obj_z */
+    volatile int *interrupt;    /* the caller's stop flag, or NULL */
+    int cached;                 /* 1: cx, cf, cg hold the last evaluation of obj_x */
+    double cx[FIT_MAX_PARAMS], cf, cg[FIT_MAX_PARAMS];
 } garch_ctx;
 
 static double logistic(double x)
@@ -91,33 +97,47 @@ static void theta_to_x(const garch_ctx *c, const double *th, double *x)
         x[w->np - 1] = logit((th[w->np - 1] - 2.0) / (NU_MAX - 2.0));
 }
 
-/* Optimiser objective: minus the log-likelihood per residual, in x. */
+/* Optimiser objective: minus the log-likelihood per residual, in x.  The
+ * gradient is always computed (it costs little beyond the value) and the last
+ * point is remembered, because line searches often ask for the value and
+ * then the gradient at the same point. */
 static int obj_x(const double *x, double *f, double *grad, void *vctx)
 {
     garch_ctx *c = vctx;
     fit_garch_work *w = &c->w;
     const int io = w->i_omega, np = w->np;
+    if (c->cached && memcmp(x, c->cx, (size_t)np * sizeof *x) == 0) {
+        *f = c->cf;
+        if (grad)
+            memcpy(grad, c->cg, (size_t)np * sizeof *grad);
+        return HN_OK;
+    }
+    c->cached = 0;
     double jac[4], ll;
     x_to_theta(c, x, c->theta, jac);
-    int rc = fit_garch_loglik(w, c->theta, &ll, grad ? c->gth : NULL, NULL);
+    int rc = fit_garch_loglik(w, c->theta, &ll, c->gth, NULL);
     if (rc != HN_OK)
         return rc;
     const double inv = -1.0 / (double)w->N;
-    *f = inv * ll;
-    if (grad) {
-        const double *g = c->gth;
-        for (int i = 0; i < w->k_mean; i++)
-            grad[i] = inv * g[i];
-        if (w->spec.mean)
-            grad[0] *= c->sy;
-        grad[io] = inv * g[io] * c->theta[io];
-        grad[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2]);
-        grad[io + 2] = inv * (g[io + 1] * jac[1] + g[io + 2] * jac[3]);
-        if (w->has_nu) {
-            double L = logistic(x[np - 1]);
-            grad[np - 1] = inv * g[np - 1] * (NU_MAX - 2.0) * L * (1.0 - L);
-        }
+    const double *g = c->gth;
+    double *cg = c->cg;
+    for (int i = 0; i < w->k_mean; i++)
+        cg[i] = inv * g[i];
+    if (w->spec.mean)
+        cg[0] *= c->sy;
+    cg[io] = inv * g[io] * c->theta[io];
+    cg[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2]);
+    cg[io + 2] = inv * (g[io + 1] * jac[1] + g[io + 2] * jac[3]);
+    if (w->has_nu) {
+        double L = logistic(x[np - 1]);
+        cg[np - 1] = inv * g[np - 1] * (NU_MAX - 2.0) * L * (1.0 - L);
     }
+    c->cf = inv * ll;
+    memcpy(c->cx, x, (size_t)np * sizeof *x);
+    c->cached = 1;
+    *f = c->cf;
+    if (grad)
+        memcpy(grad, cg, (size_t)np * sizeof *grad);
     return HN_OK;
 }
 
@@ -141,8 +161,8 @@ static int obj_u(const double *u, double *f, double *grad, void *vctx)
     return HN_OK;
 }
 
-/* Two-pass mean and variance (divisor n) of Y[0..n-1]. */
-static void mean_var(const double *y, size_t n, double *m, double *v)
+/* Variance (divisor n) of Y[0..n-1] by two passes with the correction term. */
+static double variance(const double *y, size_t n)
 {
     double s = 0.0;
     for (size_t i = 0; i < n; i++)
@@ -153,8 +173,7 @@ static void mean_var(const double *y, size_t n, double *m, double *v)
         ss += d * d;
         sc += d;
     }
-    *m = mu + sc / (double)n;
-    *v = (ss - sc * sc / (double)n) / (double)n;
+    return (ss - sc * sc / (double)n) / (double)n;
 }
 
 static double vnorm(const double *g, int np)
@@ -168,10 +187,10 @@ static double vnorm(const double *g, int np)
 /* Newton steps on the objective in x with the Hessian from differences of
  * the analytic gradient, after BFGS2: near the optimum the objective changes
  * by less than its rounding error, so line searches on it stall, while the
- * gradient still carries information.  Steps aim at 1e-4 TOL; one is kept when it lowers the
- * gradient norm without raising the objective beyond rounding.  Updates X,
- * *EVALS (objective calls) and *GN (final gradient norm). */
-static int newton_polish(garch_ctx *c, double *x, double tol, int *evals, double *gn)
+ * gradient still carries information.  Steps aim at 1e-4 TOL; one is kept
+ * when it lowers the gradient norm without raising the objective beyond
+ * rounding.  Updates X and *GN (final gradient norm).  HN_OK or HN_ENOMEM. */
+static int newton_polish(garch_ctx *c, double *x, double tol, double *gn)
 {
     const int np = c->w.np;
     size_t nn = (size_t)np * (size_t)np;
@@ -181,7 +200,6 @@ static int newton_polish(garch_ctx *c, double *x, double tol, int *evals, double
     double *g = H + nn, *d = g + np, *xt = d + np, *gt = xt + np;
     double f, ft;
     int rc = obj_x(x, &f, g, c);
-    (*evals)++;
     if (rc != HN_OK) {
         free(H);
         return HN_OK;
@@ -192,7 +210,6 @@ static int newton_polish(garch_ctx *c, double *x, double tol, int *evals, double
     for (int it = 0; it < 6 && *gn >= target; it++) {
         if (fit_hessian_fd(np, x, obj_x, c, H) != HN_OK)
             break;
-        *evals += 2 * np;
         memcpy(d, g, (size_t)np * sizeof *d);
         if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', np, 1, H, np, d, 1) != 0)
             break;
@@ -200,7 +217,6 @@ static int newton_polish(garch_ctx *c, double *x, double tol, int *evals, double
         for (double lam = 1.0; lam > 0.1 && !kept; lam *= 0.5) {
             for (int i = 0; i < np; i++)
                 xt[i] = x[i] - lam * d[i];
-            (*evals)++;
             if (obj_x(xt, &ft, gt, c) != HN_OK)
                 continue;
             double gnt = vnorm(gt, np);
@@ -355,6 +371,285 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     return standard_errors(c, th, r);
 }
 
+/* Preconditioned objective: x = x0 + L^-T z, so that a Hessian close to
+ * L L' in x is close to the identity in z; grad_z = L^-1 grad_x. */
+static int obj_z(const double *z, double *f, double *grad, void *vctx)
+{
+    garch_ctx *c = vctx;
+    const int np = c->w.np;
+    const double *L = c->L;
+    for (int i = np - 1; i >= 0; i--) {        /* solve L' d = z */
+        double v = z[i];
+        for (int k = i + 1; k < np; k++)
+            v -= L[k * np + i] * c->xz[k];
+        c->xz[i] = v / L[i * np + i];
+    }
+    for (int i = 0; i < np; i++)
+        c->xz[i] += c->x0[i];
+    int rc = obj_x(c->xz, f, grad ? c->gz : NULL, c);
+    if (rc != HN_OK || !grad)
+        return rc;
+    for (int i = 0; i < np; i++) {             /* solve L g = grad_x */
+        double v = c->gz[i];
+        for (int k = 0; k < i; k++)
+            v -= L[i * np + k] * grad[k];
+        grad[i] = v / L[i * np + i];
+    }
+    return HN_OK;
+}
+
+/* Quasi-Newton steps with unit length on the whole series, from the metric
+ * B = L L' (the subsample Hessian) updated by the BFGS formula after each
+ * step: one likelihood pass per step, superlinear once B has learnt the
+ * whole-series curvature.  A step is kept when it lowers the gradient norm
+ * without raising the objective beyond rounding; otherwise a half step is
+ * tried, then the steps stop.  Updates X and *GN; returns the steps kept. */
+static int metric_polish(garch_ctx *c, double *x, double tol, double *gn)
+{
+    const int np = c->w.np;
+    double B[FIT_MAX_PARAMS * FIT_MAX_PARAMS], F[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
+    double g[FIT_MAX_PARAMS], d[FIT_MAX_PARAMS], xt[FIT_MAX_PARAMS], gt[FIT_MAX_PARAMS];
+    double Bs[FIT_MAX_PARAMS], yv[FIT_MAX_PARAMS];
+    double f, ft;
+    int kept = 0;
+    if (obj_x(x, &f, g, c) != HN_OK)
+        return 0;
+    *gn = vnorm(g, np);
+    const double *L = c->L;
+    for (int i = 0; i < np; i++)               /* B = L L' */
+        for (int j = 0; j < np; j++) {
+            double v = 0.0;
+            for (int k = 0; k <= (i < j ? i : j); k++)
+                v += L[i * np + k] * L[j * np + k];
+            B[i * np + j] = v;
+        }
+    for (int it = 0; it < 20 && *gn >= 1e-2 * tol; it++) {
+        if (c->interrupt && *c->interrupt)
+            break;
+        memcpy(F, B, (size_t)np * (size_t)np * sizeof *F);
+        memcpy(d, g, (size_t)np * sizeof *d);
+        if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', np, 1, F, np, d, 1) != 0)
+            break;
+        int ok = 0;
+        double lam = 1.0;
+        for (int half = 0; half < 2 && !ok; half++, lam = 0.5) {
+            for (int i = 0; i < np; i++)
+                xt[i] = x[i] - lam * d[i];
+            if (obj_x(xt, &ft, gt, c) != HN_OK)
+                continue;
+            double gnt = vnorm(gt, np);
+            ok = gnt < *gn && ft <= f + 8.0 * DBL_EPSILON * fabs(f);
+            if (ok)
+                *gn = gnt;
+        }
+        if (!ok)
+            break;
+        kept++;
+        /* BFGS update with s = xt - x, y = gt - g. */
+        double sy = 0.0, sBs = 0.0;
+        for (int i = 0; i < np; i++) {
+            double si = xt[i] - x[i];
+            d[i] = si;
+            yv[i] = gt[i] - g[i];
+            sy += si * yv[i];
+        }
+        for (int i = 0; i < np; i++) {
+            double v = 0.0;
+            for (int j = 0; j < np; j++)
+                v += B[i * np + j] * d[j];
+            Bs[i] = v;
+            sBs += d[i] * v;
+        }
+        if (sy > 1e-12 * sBs && sBs > 0.0)
+            for (int i = 0; i < np; i++)
+                for (int j = 0; j < np; j++)
+                    B[i * np + j] += yv[i] * yv[j] / sy - Bs[i] * Bs[j] / sBs;
+        memcpy(x, xt, (size_t)np * sizeof *x);
+        memcpy(g, gt, (size_t)np * sizeof *g);
+        f = ft;
+    }
+    return kept;
+}
+
+/* Starting points: the mean start MSTART with several (alpha1, beta1),
+ * omega matching the residual variance S2, nu = 8.  Each is screened by one
+ * likelihood pass; BFGS2 (then Newton steps) runs from the best, and from the
+ * next ones only while a run fails to converge.  Writes the best point to
+ * XBEST and its report to *REP.  HN_OK,
+ * HN_EINTR, HN_ENOMEM, HN_EINVAL or HN_ENUMERIC (no start was feasible). */
+static int multistart(garch_ctx *c, const fit_options *o, const double *mstart, double s2,
+                      double *xbest, fit_optim_report *rep_best)
+{
+    fit_garch_work *w = &c->w;
+    const int np = w->np, ns = o->n_starts, io = w->i_omega;
+    double *xs = malloc(2 * (size_t)ns * (size_t)np * sizeof *xs);
+    double *fs = malloc((size_t)ns * sizeof *fs);
+    if (!xs || !fs) {
+        free(xs);
+        free(fs);
+        return HN_ENOMEM;
+    }
+    double *xb = xs + (size_t)ns * np;
+    double th[FIT_MAX_PARAMS];
+    memcpy(th, mstart, (size_t)w->k_mean * sizeof *th);
+    for (int k = 0; k < ns; k++) {
+        double a, b;
+        if (k < N_START_AB) {
+            a = start_ab[k][0];
+            b = start_ab[k][1];
+        } else {                               /* beyond the table: spread over a grid */
+            a = 0.02 + 0.25 * (double)((k * 7) % 11) / 10.0;
+            b = (0.97 - a) * (0.4 + 0.6 * (double)((k * 3) % 7) / 6.0);
+        }
+        th[io] = s2 * (1.0 - a - b);
+        th[io + 1] = a;
+        th[io + 2] = b;
+        if (w->has_nu)
+            th[np - 1] = 8.0;
+        double *x = xs + (size_t)k * np;
+        theta_to_x(c, th, x);
+        if (obj_x(x, &fs[k], NULL, c) != HN_OK || !isfinite(fs[k]))
+            fs[k] = INFINITY;
+    }
+
+    int rc = HN_OK, best = -1;
+    double fbest = INFINITY;
+    memset(rep_best, 0, sizeof *rep_best);
+    fit_optim_options oo = fit_optim_default_options();
+    oo.max_iter = o->max_iter;
+    oo.grad_tol = o->grad_tol;
+    oo.interrupt = o->interrupt;
+    for (int tried = 0; tried < ns; tried++) {
+        int k = -1;
+        for (int j = 0; j < ns; j++)           /* next best unexplored start */
+            if (isfinite(fs[j]) && (k < 0 || fs[j] < fs[k]))
+                k = j;
+        if (k < 0)
+            break;
+        fs[k] = NAN;                           /* mark explored */
+        double *x = xb + (size_t)k * np;
+        memcpy(x, xs + (size_t)k * np, (size_t)np * sizeof *x);
+        fit_optim_report rep;
+        int orc = fit_optim_minimise(np, x, obj_x, c, &oo, &rep);
+        if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL) {
+            rc = orc;
+            break;
+        }
+        if (orc != HN_OK && orc != HN_ENOCONV)
+            continue;
+        rc = newton_polish(c, x, o->grad_tol, &rep.grad_norm);
+        if (rc != HN_OK)
+            break;
+        rep.converged = rep.grad_norm < o->grad_tol;
+        obj_x(x, &rep.f, NULL, c);
+        if (rep.f < fbest || (rep.converged && !rep_best->converged && rep.f <= fbest + 1e-12)) {
+            fbest = rep.f;
+            best = k;
+            *rep_best = rep;
+        }
+        if (rep_best->converged)
+            break;
+    }
+    if (rc == HN_OK && best < 0)
+        rc = HN_ENUMERIC;
+    if (rc == HN_OK)
+        memcpy(xbest, xb + (size_t)best * np, (size_t)np * sizeof *xbest);
+    free(xs);
+    free(fs);
+    return rc;
+}
+
+/* Long series: a fit on the first SUB_N residuals (multistart) gives a point
+ * close to the optimum and, from its Hessian, a preconditioner; BFGS2 then
+ * finishes on the whole series in the preconditioned coordinates, followed
+ * by fixed-metric steps.  This needs a few dozen whole-series passes where
+ * a cold start needs hundreds. */
+#define SUB_N 20000
+#define LONG_N (4 * SUB_N)
+
+static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, double s2,
+                     double *xbest, fit_optim_report *rep, int *evals)
+{
+    fit_garch_work *w = &c->w;
+    const int np = w->np;
+    garch_ctx sub = *c;
+    memset(&sub.w, 0, sizeof sub.w);
+    sub.L = NULL;
+    sub.cached = 0;
+    int rc = fit_garch_work_init(&sub.w, w->y, w->start + SUB_N, &w->spec);
+    if (rc != HN_OK)
+        return rc;
+    double xs[FIT_MAX_PARAMS], zs[FIT_MAX_PARAMS];
+    double *H = malloc((size_t)np * (size_t)np * sizeof *H);
+    if (!H) {
+        fit_garch_work_free(&sub.w);
+        return HN_ENOMEM;
+    }
+    fit_optim_report srep;
+    rc = multistart(&sub, o, mstart, s2, xs, &srep);
+    if (rc == HN_OK) {
+        rc = fit_hessian_fd(np, xs, obj_x, &sub, H);
+        if (rc == HN_OK && LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', np, H, np) != 0)
+            rc = HN_ESINGULAR;
+    }
+    *evals += (int)sub.w.passes;
+    fit_garch_work_free(&sub.w);
+    if (rc == HN_EINTR || rc == HN_ENOMEM) {
+        free(H);
+        return rc;
+    }
+    if (rc != HN_OK) {                         /* no usable preconditioner */
+        free(H);
+        return multistart(c, o, mstart, s2, xbest, rep);
+    }
+    for (int i = 0; i < np; i++)               /* keep the lower triangle */
+        for (int j = i + 1; j < np; j++)
+            H[i * np + j] = 0.0;
+    c->L = H;
+    c->x0 = xs;
+    /* In z the Hessian is near the identity, so the z-gradient norm bounds
+     * the x-gradient norm through the largest diagonal of L. */
+    double lmax = 0.0;
+    for (int i = 0; i < np; i++)
+        for (int j = 0; j <= i; j++)
+            if (fabs(H[i * np + j]) > lmax)
+                lmax = fabs(H[i * np + j]);
+    fit_optim_options oo = fit_optim_default_options();
+    oo.max_iter = o->max_iter;
+    oo.grad_tol = o->grad_tol / (lmax * sqrt((double)np));
+    oo.interrupt = o->interrupt;
+    /* Fixed-metric steps from the subsample optimum first: near the optimum
+     * each gains about one digit for one pass; BFGS2 in z only when they stall. */
+    memcpy(xbest, xs, (size_t)np * sizeof *xbest);
+    int steps = metric_polish(c, xbest, o->grad_tol, &rep->grad_norm);
+    rep->iterations = srep.iterations + steps;
+    rep->converged = rep->grad_norm < o->grad_tol;
+    if (!rep->converged) {
+        for (int i = 0; i < np; i++)
+            zs[i] = 0.0;
+        c->x0 = xbest;
+        int orc = fit_optim_minimise(np, zs, obj_z, c, &oo, rep);
+        if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL) {
+            rc = orc;
+        } else if (orc == HN_OK || orc == HN_ENOCONV) {
+            double f;
+            obj_z(zs, &f, NULL, c);            /* x of the final z */
+            memcpy(xs, c->xz, (size_t)np * sizeof *xs);
+            memcpy(xbest, xs, (size_t)np * sizeof *xbest);
+            rep->iterations += srep.iterations + steps;
+            rep->iterations += metric_polish(c, xbest, o->grad_tol, &rep->grad_norm);
+            rep->converged = rep->grad_norm < o->grad_tol;
+        } else {                               /* the whole-series start failed */
+            c->L = NULL;
+            rc = multistart(c, o, mstart, s2, xbest, rep);
+        }
+    }
+    c->L = NULL;
+    c->x0 = NULL;
+    free(H);
+    return rc;
+}
+
 int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
                        const fit_options *opt, fit_result *res)
 {
@@ -377,128 +672,60 @@ int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
 
     garch_ctx c;
     memset(&c, 0, sizeof c);
-    double ybar, vy;
-    mean_var(y, n, &ybar, &vy);
+    const double vy = variance(y, n);
     if (!(vy > 0.0))
         return HN_ECONST;
     c.sy = sqrt(vy);
     c.vy = vy;
+    c.interrupt = o.interrupt;
     int rc = fit_garch_work_init(&c.w, y, n, spec);
     if (rc != HN_OK)
         return rc;
-    const int ns = o.n_starts;
-    double *buf = malloc((size_t)np * (size_t)(4 + 2 * ns) * sizeof *buf);
-    double *fs = malloc((size_t)ns * sizeof *fs);
-    if (!buf || !fs) {
-        free(buf);
-        free(fs);
+    double *buf = malloc(6 * (size_t)np * sizeof *buf);
+    if (!buf) {
         fit_garch_work_free(&c.w);
         return HN_ENOMEM;
     }
     c.theta = buf;
     c.gth = buf + np;
     c.scale = buf + 2 * np;
-    double *th = buf + 3 * np;
-    double *xs = buf + 4 * np;             /* ns starting points in x */
-    double *xb = xs + (size_t)ns * np;     /* ns optimised points */
+    c.xz = buf + 3 * np;
+    c.gz = buf + 4 * np;
+    double *th = buf + 5 * np;
 
-    /* Starting points: the mean start with several (alpha1, beta1), omega
-     * matching the residual variance, nu = 8.  Each is screened by one
-     * likelihood pass; the optimiser runs from the best, and from the next
-     * ones only while a run fails to converge. */
-    rc = fit_arma_start(spec, y, n, th);
+    /* Mean start (Hannan-Rissanen) and the residual variance there. */
+    double mstart[FIT_MAX_PARAMS], xbest[FIT_MAX_PARAMS];
+    rc = fit_arma_start(spec, y, n, mstart);
     double s2 = vy;
     if (rc == HN_OK) {
         double ssr;
-        if (fit_arma_resid(c.w.aw, y, n, th, NULL, NULL, &ssr, NULL) == HN_OK &&
+        if (fit_arma_resid(c.w.aw, y, n, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
             ssr > 0.0 && isfinite(ssr))
             s2 = ssr / (double)c.w.N;
     }
-    for (int k = 0; rc == HN_OK && k < ns; k++) {
-        double a, b;
-        if (k < N_START_AB) {
-            a = start_ab[k][0];
-            b = start_ab[k][1];
-        } else {                           /* beyond the table: spread over a grid */
-            a = 0.02 + 0.25 * (double)((k * 7) % 11) / 10.0;
-            b = (0.97 - a) * (0.4 + 0.6 * (double)((k * 3) % 7) / 6.0);
-        }
-        int io = c.w.i_omega;
-        th[io] = s2 * (1.0 - a - b);
-        th[io + 1] = a;
-        th[io + 2] = b;
-        if (c.w.has_nu)
-            th[np - 1] = 8.0;
-        double *x = xs + (size_t)k * np;
-        theta_to_x(&c, th, x);
-        if (obj_x(x, &fs[k], NULL, &c) != HN_OK || !isfinite(fs[k]))
-            fs[k] = INFINITY;
-    }
-    int evaluations = ns;
-
-    int best = -1;
-    double fbest = INFINITY;
-    fit_optim_report rep_best;
-    memset(&rep_best, 0, sizeof rep_best);
-    fit_optim_options oo = fit_optim_default_options();
-    oo.max_iter = o.max_iter;
-    oo.grad_tol = o.grad_tol;
-    oo.interrupt = o.interrupt;
-    for (int tried = 0; rc == HN_OK && tried < ns; tried++) {
-        int k = -1;
-        for (int j = 0; j < ns; j++)       /* next best unexplored start */
-            if (isfinite(fs[j]) && (k < 0 || fs[j] < fs[k]))
-                k = j;
-        if (k < 0)
-            break;
-        fs[k] = NAN;                       /* mark explored */
-        double *x = xb + (size_t)k * np;
-        memcpy(x, xs + (size_t)k * np, (size_t)np * sizeof *x);
-        fit_optim_report rep;
-        int orc = fit_optim_minimise(np, x, obj_x, &c, &oo, &rep);
-        evaluations += rep.evaluations;
-        if (orc == HN_EINTR) {
-            rc = HN_EINTR;
-            break;
-        }
-        if (orc == HN_ENOMEM || orc == HN_EINVAL) {
-            rc = orc;
-            break;
-        }
-        if (orc != HN_OK && orc != HN_ENOCONV)
-            continue;
-        int rc2 = newton_polish(&c, x, o.grad_tol, &evaluations, &rep.grad_norm);
-        if (rc2 != HN_OK) {
-            rc = rc2;
-            break;
-        }
-        rep.converged = rep.grad_norm < o.grad_tol;
-        obj_x(x, &rep.f, NULL, &c);
-        if (rep.f < fbest || (rep.converged && !rep_best.converged && rep.f <= fbest + 1e-12)) {
-            fbest = rep.f;
-            best = k;
-            rep_best = rep;
-        }
-        if (rep_best.converged)
-            break;
-    }
-    if (rc == HN_OK && best < 0)
-        rc = HN_ENUMERIC;
+    int evaluations = 0;
+    fit_optim_report rep;
+    memset(&rep, 0, sizeof rep);
     if (rc == HN_OK) {
-        x_to_theta(&c, xb + (size_t)best * np, th, NULL);
+        if (c.w.N >= LONG_N)
+            rc = two_stage(&c, &o, mstart, s2, xbest, &rep, &evaluations);
+        else
+            rc = multistart(&c, &o, mstart, s2, xbest, &rep);
+    }
+    if (rc == HN_OK) {
+        x_to_theta(&c, xbest, th, NULL);
         rc = fit_result_init(res, spec, n, c.w.start, 1);
     }
     if (rc == HN_OK) {
-        res->evaluations = evaluations;
-        res->converged = rep_best.converged;
-        res->iterations = rep_best.iterations;
-        res->grad_norm = rep_best.grad_norm;
-        if (!rep_best.converged)
+        res->evaluations = evaluations + (int)c.w.passes;
+        res->converged = rep.converged;
+        res->iterations = rep.iterations;
+        res->grad_norm = rep.grad_norm;
+        if (!rep.converged)
             res->warnings |= FIT_WARN_NOCONV;
         rc = fill_result(&c, th, res);
     }
     free(buf);
-    free(fs);
     fit_garch_work_free(&c.w);
     if (rc != HN_OK) {
         fit_result_free(res);

@@ -74,6 +74,7 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
     const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
     const double nu = w->has_nu ? th[np - 1] : 0.0;
 
+    w->passes++;
     for (int i = 0; i < np; i++)
         if (!isfinite(th[i]))
             return HN_EDOMAIN;

@@ -24,6 +24,7 @@ typedef struct {
     double *h;           /* N conditional variances at the last evaluation */
     double *tmp;         /* 4 * np scratch */
     fit_arma_ws *aw;     /* residual recursion workspace */
+    long passes;         /* likelihood passes made so far (work counter) */
 } fit_garch_work;
 
 /* Size W for SPEC (spec->garch set) on Y[0..n-1]; Y must outlive W.
@@ -40,8 +41,9 @@ void fit_garch_work_free(fit_garch_work *w);
  * (2 pi for the normal; the standardised Student-t density otherwise).
  * Writes *LL; when GRAD is not NULL its analytic gradient (w->np values);
  * when SCORES is not NULL the per-observation scores (N x np, row-major).
- * Leaves w->e and w->h at THETA.  HN_OK, or HN_EDOMAIN when a variance is
- * not positive, nu <= 2 or a value is not finite. */
+ * Leaves w->e and w->h at THETA and counts one pass in w->passes.  HN_OK,
+ * or HN_EDOMAIN when a variance is not positive, nu <= 2 or a value is not
+ * finite.  The log-likelihood is summed with Neumaier's compensation. */
 int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
                      double *grad, double *scores);
 

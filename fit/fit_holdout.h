@@ -1,4 +1,4 @@
-/* fit_holdout.h - hold-out check: refit on the first n - h values, score forecasts of the last h. */
+/* fit_holdout.h - hold-out check: refit on the first n - h values, score the last h. */
 #ifndef FIT_HOLDOUT_H
 #define FIT_HOLDOUT_H
 

@@ -277,6 +277,35 @@ static void test_alpha_zero_warning(void **state)
     free(y);
 }
 
+/* A raised stop flag ends the fit with HN_EINTR and an empty result; one
+ * starting point is enough on a well-behaved series. */
+static void test_interrupt_and_one_start(void **state)
+{
+    (void)state;
+    fit_spec s = spec_of("garch(1,1)");
+    const double truth[4] = { 0.0, 0.05, 0.08, 0.9 };
+    const size_t n = 2000;
+    double *y = malloc(n * sizeof *y);
+    assert_non_null(y);
+    assert_int_equal(fit_simulate(&s, truth, n, 100, 12UL, y), HN_OK);
+    volatile int stop = 1;
+    fit_options o = fit_default_options();
+    o.interrupt = &stop;
+    fit_result r;
+    assert_int_equal(fit_garch_estimate(y, n, &s, &o, &r), HN_EINTR);
+    assert_null(r.resid);
+    assert_null(r.cov);
+    stop = 0;
+    o.n_starts = 1;
+    assert_int_equal(fit_garch_estimate(y, n, &s, &o, &r), HN_OK);
+    fit_result r4;
+    assert_int_equal(fit_garch_estimate(y, n, &s, NULL, &r4), HN_OK);
+    TU_NEAR(r.loglik, r4.loglik, 1e-9);
+    fit_result_free(&r);
+    fit_result_free(&r4);
+    free(y);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -291,6 +320,7 @@ int main(void)
         cmocka_unit_test(test_recover_garch_t),
         cmocka_unit_test(test_short_and_bad_input),
         cmocka_unit_test(test_alpha_zero_warning),
+        cmocka_unit_test(test_interrupt_and_one_start),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
