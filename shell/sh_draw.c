@@ -806,6 +806,8 @@ int sh_draw_svg_string(const sh_chart *c, double w, double h, const char *id_pre
     }
     sbuf b = { NULL, 0, 0 };
     cairo_surface_t *s = cairo_svg_surface_create_for_stream(svg_write, &b, w, h);
+    /* pixels, so that a chart inlined in HTML has the size asked for */
+    cairo_svg_surface_set_document_unit(s, CAIRO_SVG_UNIT_PX);
     int rc = render_on(s, c, w, h);
     cairo_surface_finish(s);
     if (rc == HN_OK)

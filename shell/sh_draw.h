@@ -21,9 +21,9 @@
  * HN_EIO when the context reports another error. */
 int sh_draw_chart(cairo_t *cr, const sh_chart *c, double x, double y, double w, double h);
 
-/* Render chart C alone as an SVG document of W x H points into a malloc'd
- * NUL-terminated string *OUT (length in *LEN when LEN is not NULL); the
- * caller frees it with free().  ID_PREFIX, when not NULL, is put in front of
+/* Render chart C alone as an SVG document of W x H pixels (the document's
+ * unit is px) into a malloc'd NUL-terminated string *OUT (length in *LEN when
+ * LEN is not NULL); the caller frees it with free().  ID_PREFIX, when not NULL, is put in front of
  * every id in the document and every reference to one, so that several
  * charts can be inlined in one HTML page (a letter, then letters, digits,
  * '-' or '_'; anything else is HN_EINVAL).  The text starts with an XML

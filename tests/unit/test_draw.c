@@ -154,6 +154,7 @@ static void test_svg(void **state)
         assert_int_equal(n, strlen(s));
         assert_true(strncmp(s, "<?xml", 5) == 0 || strncmp(s, "<svg", 4) == 0);
         assert_non_null(strstr(s, "<svg"));
+        assert_non_null(strstr(s, "width=\"480px\""));
         assert_non_null(strstr(s, "<path"));
         assert_non_null(strstr(s, "</svg>"));
         free(s);

@@ -437,6 +437,20 @@ static void test_write_file(void **state)
     fclose(f);
 }
 
+static void test_band_per_lag(void **state)
+{
+    (void)state;
+    static const double r[] = { 0.15, 0.15, -0.15 }, b[] = { 0.1, 0.3, 0.12 };
+    sh_chart c;
+    sh_chart_corr(&c, "pacf", r, 3, 0.0);
+    c.band_lag = b;
+    char *s = render(&c, 50, 12, 0);
+    check_box(s, 50, 12);
+    /* lag 2 is inside its wider band; lags 1 and 3 are not */
+    assert_non_null(strstr(s, "beyond band: lags 1 3\n"));
+    free(s);
+}
+
 static void test_many_lags(void **state)
 {
     (void)state;
@@ -467,6 +481,7 @@ int main(void)
         cmocka_unit_test(test_colour),
         cmocka_unit_test(test_bad_sizes),
         cmocka_unit_test(test_write_file),
+        cmocka_unit_test(test_band_per_lag),
         cmocka_unit_test(test_many_lags),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
