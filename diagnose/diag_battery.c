@@ -357,6 +357,9 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
             return HN_ENOMEM;
         }
         t->criterion = CHECKS[i].criterion;
+        if (CHECKS[i].kind == ARG_BLOCKS && ctx.nblocks < 2 && !t->valid)
+            snprintf(t->detail, sizeof t->detail,
+                     "needs at least 2 blocks: n = %zu holds %zu of width %zu", n, ctx.nblocks, w);
     }
 
     /* Practical size beside significance. */

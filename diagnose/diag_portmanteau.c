@@ -353,7 +353,7 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
         diag_test_invalid(out, name, DIAG_SERIAL, "the values are constant");
         goto done;
     }
-    double cum = 0.0, D = 0.0, worst_c = 0.0;
+    double cum = 0.0, D = 0.0, worst_c = 0.0, worst_u = 0.0;
     size_t worst_j = 1;
     for (size_t j = 1; j <= M; j++) {
         cum += I[j - 1];
@@ -364,6 +364,7 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
             D = dj;
             worst_j = j;
             worst_c = c;
+            worst_u = dplus > dminus ? (double)j / (double)M : (double)(j - 1) / (double)M;
         }
     }
     double sm = sqrt((double)M);
@@ -373,7 +374,7 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
     snprintf(out->detail, sizeof out->detail,
              "KS distance %.4f over %zu frequencies j/n, j = 1..%zu; largest near frequency %zu/%zu "
              "(period %.1f), cumulative share %.3f against uniform %.3f",
-             D, q, q, worst_j, n, (double)n / (double)worst_j, worst_c, (double)worst_j / (double)M);
+             D, q, q, worst_j, n, (double)n / (double)worst_j, worst_c, worst_u);
     /* Practical size as for the portmanteau tests. */
     {
         int order = diag_share_order(n);

@@ -288,6 +288,18 @@ static void test_rules(void **state)
         free(y);
     }
 
+    /* n = 12 holds one block of 10: the block checks are invalid, with the
+     * reason, and the summary says that criterion was not judged. */
+    assert_int_equal(diag_battery_run(x, 12, NULL, &b), HN_OK);
+    int bf = find_test(&b, "brown-forsythe");
+    assert_true(bf >= 0);
+    assert_false(b.tests[bf].valid);
+    assert_non_null(strstr(b.tests[bf].detail, "at least 2 blocks"));
+    assert_int_equal(b.holm_rank[DIAG_VARIANCE], 0);
+    assert_true(isnan(b.crit_p[DIAG_VARIANCE]));
+    assert_non_null(strstr(b.summary, "Not judged (no valid check): constant variance"));
+    diag_battery_free(&b);
+
     double c[10] = { 1, 1, 1, 1, 1, 1, 1, 1, 1, 1 };
     assert_int_equal(diag_battery_run(c, 7, NULL, &b), HN_ESHORT);
     assert_int_equal(diag_battery_run(c, 10, NULL, &b), HN_ECONST);
