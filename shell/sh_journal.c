@@ -21,6 +21,10 @@
 struct sh_journal {
     FILE *f;
     char path[1024];
+    int memory;           /* entries kept in memory (replay), not on disk */
+    char *mem;            /* memory mode: the text so far (open_memstream) */
+    size_t memlen;
+    size_t last_off;      /* memory mode: where the last entry starts */
 };
 
 int sh_sha256_file(const char *path, char hex[65], long long *size)
@@ -54,7 +58,27 @@ int sh_sha256_file(const char *path, char hex[65], long long *size)
 static void sync_journal(sh_journal *j)
 {
     fflush(j->f);
-    fsync(fileno(j->f));
+    if (!j->memory)
+        fsync(fileno(j->f));
+}
+
+/* The shortest %g text that reads back to X. */
+static char *shortest(char *buf, size_t len, double x)
+{
+    for (int p = 6; p <= 17; p++) {
+        snprintf(buf, len, "%.*g", p, x);
+        if (strtod(buf, NULL) == x)
+            break;
+    }
+    return buf;
+}
+
+static void utc_now(char *when, size_t len)
+{
+    time_t now = time(NULL);
+    struct tm tmv;
+    gmtime_r(&now, &tmv);
+    strftime(when, len, "%Y-%m-%dT%H:%M:%SZ", &tmv);
 }
 
 sh_journal *sh_journal_open(const char *path, const sh_session *s, char *err, size_t errlen)
@@ -76,20 +100,31 @@ sh_journal *sh_journal_open(const char *path, const sh_session *s, char *err, si
         free(j);
         return NULL;
     }
-    char host[256] = "unknown", when[64];
+    char host[256] = "unknown", when[64], cwd[2048];
     const char *user = getenv("USER");
     if (!user || !*user)
         user = getenv("LOGNAME");
     gethostname(host, sizeof host - 1);
-    time_t now = time(NULL);
-    struct tm tmv;
-    gmtime_r(&now, &tmv);
-    strftime(when, sizeof when, "%Y-%m-%dT%H:%M:%SZ", &tmv);
+    host[sizeof host - 1] = '\0';
+    utc_now(when, sizeof when);
+    if (!getcwd(cwd, sizeof cwd))
+        snprintf(cwd, sizeof cwd, "unknown");
     fprintf(j->f, "hone-journal 1\n");
     fprintf(j->f, "tool      hone %s (built %s)\n", HONE_VERSION, __DATE__);
     fprintf(j->f, "started   %s\n", when);
     fprintf(j->f, "by        %s on %s\n", user ? user : "unknown", host);
-    fprintf(j->f, "settings  alpha=%g lags=%d level=%g\n", s->alpha, s->lags, s->level);
+    fprintf(j->f, "cwd       %s\n", cwd);
+    char a[32], l[32];
+    fprintf(j->f, "settings  alpha=%s lags=%d level=%s width=%d charts=%s color=%s\n", shortest(a, sizeof a, s->alpha),
+            s->lags, shortest(l, sizeof l, s->level), s->width, s->utf8 ? "utf8" : "ascii", s->color ? "yes" : "no");
+    if (s->loaded || s->nmodels) {
+        /* Started part-way through a session: say what was already there. */
+        fprintf(j->f, "state     series from %s%s%s%s%s, %zu values, %d model%s already fitted\n", s->path,
+                *s->column ? " column " : "", s->column, *s->transforms ? ", transforms " : "",
+                s->transforms, s->n, s->nmodels, s->nmodels == 1 ? "" : "s");
+        if (s->loaded && s->path[0] != '(')
+            sh_journal_input(j, s->path);
+    }
     sync_journal(j);
     return j;
 }
@@ -119,6 +154,10 @@ static void put_lines(FILE *f, const char *prefix, const char *text)
 
 void sh_journal_entry(sh_journal *j, const char *line, const char *output, const char *error)
 {
+    if (j->memory) {
+        fflush(j->f);
+        j->last_off = j->memlen;
+    }
     /* A command line never spans lines in the journal. */
     fputs("> ", j->f);
     for (const char *p = line; *p; p++)
@@ -138,13 +177,52 @@ void sh_journal_entry(sh_journal *j, const char *line, const char *output, const
 
 const char *sh_journal_path(const sh_journal *j) { return j->path; }
 
+sh_journal *sh_journal_open_memory(const char *label)
+{
+    sh_journal *j = calloc(1, sizeof *j);
+    if (!j)
+        return NULL;
+    j->memory = 1;
+    snprintf(j->path, sizeof j->path, "%s", label ? label : "(memory)");
+    j->f = open_memstream(&j->mem, &j->memlen);
+    if (!j->f) {
+        free(j);
+        return NULL;
+    }
+    return j;
+}
+
+const char *sh_journal_last(sh_journal *j, size_t *len)
+{
+    if (!j->memory) {
+        if (len)
+            *len = 0;
+        return "";
+    }
+    fflush(j->f);
+    if (!j->mem || j->last_off > j->memlen) {
+        if (len)
+            *len = 0;
+        return "";
+    }
+    if (len)
+        *len = j->memlen - j->last_off;
+    return j->mem + j->last_off;
+}
+
 void sh_journal_close(sh_journal *j)
 {
     if (!j)
         return;
     if (j->f) {
+        if (!j->memory) {
+            char when[64];
+            utc_now(when, sizeof when);
+            fprintf(j->f, "ended     %s\n", when);
+        }
         sync_journal(j);
         fclose(j->f);
     }
+    free(j->mem);
     free(j);
 }
