@@ -8,6 +8,7 @@
 #include <locale.h>
 #include <math.h>
 #include <stdarg.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -30,6 +31,7 @@ typedef struct {
     long line;              /* physical line being fed to the parser */
     long row_line;          /* line where the current row began */
     long last_row_end;      /* line of the last complete row */
+    long cb_line;           /* a field ending while line == cb_line holds no line break */
     int field;              /* fields seen so far in the current row */
     int state;              /* 0 header, 1 first data row, 2 later rows */
 
@@ -146,28 +148,53 @@ static int word_at(const char *s, size_t len, const char *w)
  * (libcsv ends every field with NUL). */
 static num_result parse_number(const char *s, size_t len, double *v)
 {
+    /* exact powers of ten (10^22 is the largest that a double holds exactly) */
+    static const double p10[23] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                   1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+                                   1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
     trim(&s, &len);
     if (len == 0)
         return NUM_EMPTY;
     size_t i = 0, nd = 0;
+    uint64_t mant = 0;   /* significant digits, while they fit */
+    int sig = 0, inexact = 0;
+    long e10 = 0;
+    int neg = s[0] == '-';
     if (s[i] == '+' || s[i] == '-')
         i++;
-    while (i < len && s[i] >= '0' && s[i] <= '9')
-        i++, nd++;
+    for (; i < len && s[i] >= '0' && s[i] <= '9'; i++, nd++) {
+        if (mant == 0 && s[i] == '0')
+            continue;
+        if (sig < 19)
+            mant = mant * 10 + (uint64_t)(s[i] - '0'), sig++;
+        else
+            inexact = 1;
+    }
     if (i < len && s[i] == '.') {
-        i++;
-        while (i < len && s[i] >= '0' && s[i] <= '9')
-            i++, nd++;
+        for (i++; i < len && s[i] >= '0' && s[i] <= '9'; i++, nd++) {
+            if (mant == 0 && s[i] == '0') {
+                e10--;
+                continue;
+            }
+            if (sig < 19)
+                mant = mant * 10 + (uint64_t)(s[i] - '0'), sig++, e10--;
+            else
+                inexact = 1;
+        }
     }
     int ok = nd > 0;
     if (ok && i < len && (s[i] == 'e' || s[i] == 'E')) {
         size_t ne = 0;
+        long x = 0;
+        int eneg = 0;
         i++;
         if (i < len && (s[i] == '+' || s[i] == '-'))
-            i++;
-        while (i < len && s[i] >= '0' && s[i] <= '9')
-            i++, ne++;
+            eneg = s[i++] == '-';
+        for (; i < len && s[i] >= '0' && s[i] <= '9'; i++, ne++)
+            if (x < 100000)
+                x = x * 10 + (s[i] - '0');
         ok = ne > 0;
+        e10 += eneg ? -x : x;
     }
     if (!ok || i != len) {
         size_t j = (s[0] == '+' || s[0] == '-') ? 1 : 0;
@@ -185,8 +212,15 @@ static num_result parse_number(const char *s, size_t len, double *v)
         }
         return comma && !other ? NUM_COMMA : NUM_TEXT;
     }
+    /* Clinger's fast path: an integer below 2^53 times or over an exact power of ten
+     * is one correctly rounded operation, the same result strtod gives */
+    if (!inexact && mant <= (1ull << 53) && e10 >= -22 && e10 <= 22) {
+        double x = (double)mant;
+        x = e10 >= 0 ? x * p10[e10] : x / p10[-e10];
+        *v = neg ? -x : x;
+        return NUM_OK;
+    }
     char *end;
-    errno = 0;
     double x = strtod(s, &end);
     if (end != s + len)
         return NUM_TEXT;
@@ -527,9 +561,13 @@ static void on_field(void *data, size_t len, void *arg)
     const char *s = data;
     if (R->rc || R->done)
         return;
+    /* the line the field began on: no scan needed unless a line end was fed since the
+     * last callback */
+    long line = R->line == R->cb_line ? R->line : R->line - breaks(s, len);
+    R->cb_line = R->line;
     int col = R->field++;
     if (col == 0)
-        R->row_line = R->line - breaks(s, len);
+        R->row_line = line;
     if (R->state == 0) {
         if (col >= SH_CSV_MAX_COLUMNS) {
             fail(R, HN_ELIMIT, R->row_line, 0, "the header row has more than %d fields (the limit)",
@@ -539,12 +577,11 @@ static void on_field(void *data, size_t len, void *arg)
         push(R, &R->hdr, NULL, &R->ncols, &R->hcap, s, len, 0);
     } else if (R->state == 1) {
         if (col < R->ncols)
-            push(R, &R->first, &R->first_line, &R->nfirst, &R->fcap, s, len,
-                 R->line - breaks(s, len));
+            push(R, &R->first, &R->first_line, &R->nfirst, &R->fcap, s, len, line);
     } else if (col == R->vcol) {
-        value_cell(R, s, len, R->line - breaks(s, len));
+        value_cell(R, s, len, line);
     } else if (col == R->tcol) {
-        time_cell(R, s, len, R->line - breaks(s, len));
+        time_cell(R, s, len, line);
     }
 }
 
@@ -557,6 +594,7 @@ static void on_row(int c, void *arg)
     int nf = R->field;
     R->field = 0;
     R->last_row_end = R->line;
+    R->cb_line = R->line + 1; /* where the next row starts unless blank lines follow */
     if (R->state == 0) {
         if (R->names_only) {
             R->done = 1;

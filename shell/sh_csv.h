@@ -34,8 +34,10 @@ typedef struct {
     const char *time_column;  /* time column: name or index; NULL = automatic: the first
                                  column named date, time, datetime, timestamp, period, day,
                                  week, month, quarter or year (any case) whose first cell is a
-                                 time, else the first column whose first cell is an ISO 8601
-                                 date, month, quarter or date-time; "" = no time column */
+                                 time (a bare year counts) or is neither a time nor a number
+                                 (so that its bad cell is reported), else the first column
+                                 whose first cell is an ISO 8601 date, month, quarter or
+                                 date-time; "" = no time column */
     sh_missing_policy missing;
     size_t max_rows;          /* refuse more data rows than this; 0 = SH_CSV_DEFAULT_MAX_ROWS */
 } sh_csv_options;
@@ -79,7 +81,8 @@ typedef struct {
  * the delimiter (comma, semicolon or tab) is the one that occurs most often
  * in the header line outside quotes (ties: comma, then semicolon, then tab);
  * quoted fields, CRLF or LF line ends and a UTF-8 byte-order mark are
- * accepted; blank lines are skipped.  Numbers are read in the C locale
+ * accepted; blank lines are skipped (so in a one-column file an empty cell
+ * must be written "" to count as missing).  Numbers are read in the C locale
  * ('.' as decimal point, optional exponent); NaN/Inf text, values beyond the
  * range of a double, other text and ragged rows are errors.  Time cells must
  * be strictly increasing.
