@@ -115,7 +115,7 @@ static int obj_x(const double *x, double *f, double *grad, void *vctx)
     c->cached = 0;
     double jac[4], ll;
     x_to_theta(c, x, c->theta, jac);
-    int rc = fit_garch_loglik(w, c->theta, &ll, c->gth, NULL);
+    int rc = fit_garch_loglik(w, c->theta, &ll, c->gth, NULL, NULL);
     if (rc != HN_OK)
         return rc;
     const double inv = -1.0 / (double)w->N;
@@ -150,7 +150,7 @@ static int obj_u(const double *u, double *f, double *grad, void *vctx)
     double ll;
     for (int i = 0; i < w->np; i++)
         c->theta[i] = u[i] * c->scale[i];
-    int rc = fit_garch_loglik(w, c->theta, &ll, grad ? c->gth : NULL, NULL);
+    int rc = fit_garch_loglik(w, c->theta, &ll, grad ? c->gth : NULL, NULL, NULL);
     if (rc != HN_OK)
         return rc;
     const double inv = -1.0 / (double)w->N;
@@ -267,11 +267,9 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r)
     size_t nn = (size_t)np * (size_t)np;
     double *H = malloc(3 * nn * sizeof *H);
     double *u = malloc((size_t)np * sizeof *u);
-    double *G = malloc(N * (size_t)np * sizeof *G);
-    if (!H || !u || !G) {
+    if (!H || !u) {
         free(H);
         free(u);
-        free(G);
         return HN_ENOMEM;
     }
     double *Hi = H + nn, *B = H + 2 * nn;
@@ -285,22 +283,13 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r)
     }
     if (rc == HN_OK) {
         double ll;
-        rc = fit_garch_loglik(w, th, &ll, NULL, G);
+        rc = fit_garch_loglik(w, th, &ll, NULL, NULL, B);
     }
     if (rc == HN_OK) {
-        /* B = sum_t s_t s_t' in u (scores times scale). */
-        memset(B, 0, nn * sizeof *B);
-        for (size_t t = 0; t < N; t++) {
-            const double *g = G + t * (size_t)np;
-            for (int i = 0; i < np; i++) {
-                double gi = g[i] * c->scale[i];
-                for (int j = 0; j <= i; j++)
-                    B[i * np + j] += gi * g[j] * c->scale[j];
-            }
-        }
+        /* B = sum_t s_t s_t' in theta, then in u (times the scales). */
         for (int i = 0; i < np; i++)
-            for (int j = 0; j < i; j++)
-                B[j * np + i] = B[i * np + j];
+            for (int j = 0; j < np; j++)
+                B[i * np + j] *= c->scale[i] * c->scale[j];
         /* cov_u = Hi B Hi, reusing H for Hi B. */
         for (int i = 0; i < np; i++)
             for (int j = 0; j < np; j++) {
@@ -326,7 +315,6 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r)
     }
     free(H);
     free(u);
-    free(G);
     if (rc == HN_ENOMEM)
         return rc;
     if (rc != HN_OK)
@@ -341,7 +329,7 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     const int io = w->i_omega, np = w->np;
     const size_t N = w->N;
     double ll;
-    int rc = fit_garch_loglik(w, th, &ll, NULL, NULL);
+    int rc = fit_garch_loglik(w, th, &ll, NULL, NULL, NULL);
     if (rc != HN_OK)
         return HN_ENUMERIC;
     memcpy(r->par, th, (size_t)np * sizeof *th);

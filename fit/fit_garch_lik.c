@@ -65,12 +65,12 @@ void fit_garch_work_free(fit_garch_work *w)
 }
 
 int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
-                     double *grad, double *scores)
+                     double *grad, double *scores, double *opg)
 {
     const int km = w->k_mean, np = w->np, io = w->i_omega;
     const int kv = km + 3;                 /* parameters the variance depends on */
     const size_t N = w->N;
-    const int want_d = grad != NULL || scores != NULL;
+    const int want_d = grad != NULL || scores != NULL || opg != NULL;
     const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
     const double nu = w->has_nu ? th[np - 1] : 0.0;
 
@@ -94,6 +94,8 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
     const double s2 = ssr / (double)N;
     if (!(s2 > 0.0) || !isfinite(s2))
         return HN_EDOMAIN;
+    if (opg)
+        memset(opg, 0, (size_t)np * (size_t)np * sizeof *opg);
     if (want_d) {
         memset(g, 0, (size_t)np * sizeof *g);
         memset(dh, 0, (size_t)kv * sizeof *dh);
@@ -156,6 +158,10 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
                 row[np - 1] = dl_dnu;
             for (int c = 0; c < np; c++)
                 g[c] += row[c];
+            if (opg)
+                for (int a = 0; a < np; a++)
+                    for (int b = 0; b <= a; b++)
+                        opg[a * np + b] += row[a] * row[b];
             for (int c = 0; c < km; c++)
                 de2[c] = 2.0 * e * d[c];
         }
@@ -169,5 +175,9 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
     *ll = total;
     if (grad)
         memcpy(grad, g, (size_t)np * sizeof *grad);
+    if (opg)
+        for (int a = 0; a < np; a++)
+            for (int b = a + 1; b < np; b++)
+                opg[a * np + b] = opg[b * np + a];
     return HN_OK;
 }

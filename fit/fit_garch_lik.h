@@ -40,11 +40,12 @@ void fit_garch_work_free(fit_garch_work *w);
  * mean of e_t^2 at these mean parameters, all N terms with their constants
  * (2 pi for the normal; the standardised Student-t density otherwise).
  * Writes *LL; when GRAD is not NULL its analytic gradient (w->np values);
- * when SCORES is not NULL the per-observation scores (N x np, row-major).
+ * when SCORES is not NULL the per-observation scores (N x np, row-major);
+ * when OPG is not NULL the sum of their outer products (np x np, row-major).
  * Leaves w->e and w->h at THETA and counts one pass in w->passes.  HN_OK,
  * or HN_EDOMAIN when a variance is not positive, nu <= 2 or a value is not
  * finite.  The log-likelihood is summed with Neumaier's compensation. */
 int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
-                     double *grad, double *scores);
+                     double *grad, double *scores, double *opg);
 
 #endif

@@ -98,7 +98,7 @@ static void test_dmbp_loglik_at_published_point(void **state)
     const double th[4] = { -0.006190408379994, 0.0107613978518, 0.153134061820,
                            0.805973670305 };
     double ll;
-    assert_int_equal(fit_garch_loglik(&w, th, &ll, NULL, NULL), HN_OK);
+    assert_int_equal(fit_garch_loglik(&w, th, &ll, NULL, NULL, NULL), HN_OK);
     /* Source: benchmark_values.csv, log-likelihood -1106.607881041288. */
     assert_true(tu_lre(ll, -1106.607881041288) >= 13.0);
     fit_garch_work_free(&w);
@@ -120,15 +120,15 @@ static void check_gradient(const char *text, const double *truth, const double *
     assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
     double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], ll;
     memcpy(th, at, (size_t)np * sizeof *th);
-    assert_int_equal(fit_garch_loglik(&w, th, &ll, g, NULL), HN_OK);
+    assert_int_equal(fit_garch_loglik(&w, th, &ll, g, NULL, NULL), HN_OK);
     /* Central differences, step 1e-5 relative (common practice): the
      * truncation error is O(h^2), so agreement to ~1e-6 relative. */
     for (int i = 0; i < np; i++) {
         double a = th[i], h = 1e-5 * (fabs(a) > 1e-2 ? fabs(a) : 1e-2), lp, lm;
         th[i] = a + h;
-        assert_int_equal(fit_garch_loglik(&w, th, &lp, NULL, NULL), HN_OK);
+        assert_int_equal(fit_garch_loglik(&w, th, &lp, NULL, NULL, NULL), HN_OK);
         th[i] = a - h;
-        assert_int_equal(fit_garch_loglik(&w, th, &lm, NULL, NULL), HN_OK);
+        assert_int_equal(fit_garch_loglik(&w, th, &lm, NULL, NULL, NULL), HN_OK);
         th[i] = a;
         double fd = (lp - lm) / (2.0 * h);
         double tol = 1e-6 * (fabs(fd) > 1.0 ? fabs(fd) : 1.0) + 1e-6;
@@ -140,12 +140,20 @@ static void check_gradient(const char *text, const double *truth, const double *
     /* The per-observation scores add up to the gradient. */
     double *S = malloc(w.N * (size_t)np * sizeof *S);
     assert_non_null(S);
-    assert_int_equal(fit_garch_loglik(&w, th, &ll, NULL, S), HN_OK);
+    double B[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
+    assert_int_equal(fit_garch_loglik(&w, th, &ll, NULL, S, B), HN_OK);
     for (int i = 0; i < np; i++) {
         double sum = 0.0;
         for (size_t t = 0; t < w.N; t++)
             sum += S[t * (size_t)np + (size_t)i];
         TU_NEAR(sum, g[i], 1e-9 * (fabs(g[i]) > 1.0 ? fabs(g[i]) : 1.0));
+        /* ... and their outer products to the accumulated matrix. */
+        for (int j = 0; j < np; j++) {
+            double b = 0.0;
+            for (size_t t = 0; t < w.N; t++)
+                b += S[t * (size_t)np + (size_t)i] * S[t * (size_t)np + (size_t)j];
+            TU_NEAR(B[i * np + j], b, 1e-9 * (fabs(b) > 1.0 ? fabs(b) : 1.0));
+        }
     }
     free(S);
     fit_garch_work_free(&w);
