@@ -208,6 +208,16 @@ static void ylab_add(ylabels *yl, double v)
         yl->v[yl->n++] = v;
 }
 
+/* Label I as printed: a power of ten on a log axis; a value within a
+ * millionth of the axis span of zero (rounding residue) prints as 0. */
+static double ylab_value(const ylabels *yl, const frame *f, int i)
+{
+    double v = yl->v[i];
+    if (yl->pow10)
+        return pow(10.0, v);
+    return fabs(v) < 1e-6 * (f->ymax - f->ymin) ? 0.0 : v;
+}
+
 static int row_of(const frame *f, double v)
 {
     double t = (f->ymax - v) / (f->ymax - f->ymin) * (double)(f->rows - 1);
@@ -236,7 +246,7 @@ static void frame_draw(canvas *cv, const sh_chart *c, frame *f, const ylabels *y
     }
     f->rows = plot_rows(c, cv->h, legend);
     for (int i = 0; i < yl->n; i++) {
-        fmt_num(buf, sizeof buf, yl->pow10 ? pow(10.0, yl->v[i]) : yl->v[i]);
+        fmt_num(buf, sizeof buf, ylab_value(yl, f, i));
         int k = (int)strlen(buf);
         if (k > lw) lw = k;
     }
@@ -255,7 +265,7 @@ static void frame_draw(canvas *cv, const sh_chart *c, frame *f, const ylabels *y
             if (used[j] == r) taken = 1;
         if (taken)
             continue;
-        fmt_num(buf, sizeof buf, yl->pow10 ? pow(10.0, yl->v[i]) : yl->v[i]);
+        fmt_num(buf, sizeof buf, ylab_value(yl, f, i));
         text(cv, r, lw - (int)strlen(buf), buf, lw, C_NONE);
         put(cv, r, lw, g->ytick, C_NONE);
     }
