@@ -137,3 +137,48 @@ int fit_tr_boxcox(const double *y, size_t n, double lambda, double *out, size_t 
     }
     return HN_OK;
 }
+
+int fit_tr_undiff(const double *d, size_t h, const double *last, size_t k, double *out)
+{
+    if ((!d || !out) && h)
+        return HN_EINVAL;
+    if (k == 0 || !last)
+        return HN_EINVAL;
+    if (check_finite(d, h, NULL) != HN_OK || check_finite(last, k, NULL) != HN_OK)
+        return HN_EINVAL;
+    for (size_t i = 0; i < h; i++)
+        out[i] = d[i] + (i < k ? last[i] : out[i - k]);
+    return HN_OK;
+}
+
+int fit_tr_inv_boxcox(const double *z, size_t n, double lambda, double *out, size_t *bad)
+{
+    if ((!z || !out) && n)
+        return HN_EINVAL;
+    if (!isfinite(lambda))
+        return HN_EINVAL;
+    int rc = check_finite(z, n, bad);
+    if (rc != HN_OK)
+        return rc;
+    for (size_t i = 0; i < n; i++) {
+        double v;
+        if (lambda == 0.0) {
+            v = exp(z[i]);
+        } else {
+            double a = lambda * z[i];
+            if (!(a > -1.0)) {
+                if (bad)
+                    *bad = i;
+                return HN_EDOMAIN;
+            }
+            v = exp(log1p(a) / lambda);
+        }
+        if (!isfinite(v)) {
+            if (bad)
+                *bad = i;
+            return HN_ENUMERIC;
+        }
+        out[i] = v;
+    }
+    return HN_OK;
+}

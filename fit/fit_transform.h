@@ -44,4 +44,17 @@ int fit_tr_demean(const double *y, size_t n, double *out, double *mean, size_t *
  * HN_ENUMERIC with its index. */
 int fit_tr_boxcox(const double *y, size_t n, double lambda, double *out, size_t *bad);
 
+/* Inverse of fit_tr_diff / fit_tr_sdiff for values that follow the series,
+ * e.g. forecasts of the differenced series: OUT[i] = D[i] + OUT[i-K], where
+ * the K values before OUT[0] are LAST[0..K-1] (the final K values of the
+ * undifferenced series, in time order).  H values in D and OUT; OUT must not
+ * overlap LAST.  HN_EINVAL when K is 0 or a value is not finite. */
+int fit_tr_undiff(const double *d, size_t h, const double *last, size_t k, double *out);
+
+/* Inverse Box-Cox: OUT[i] = (1 + LAMBDA Z[i])^(1/LAMBDA), exp(Z[i]) at
+ * LAMBDA = 0 (evaluated as exp(log1p(LAMBDA z) / LAMBDA)).  A value with
+ * 1 + LAMBDA Z <= 0 (outside the transform's range) gives HN_EDOMAIN, an
+ * overflow HN_ENUMERIC, each with the index in *BAD. */
+int fit_tr_inv_boxcox(const double *z, size_t n, double lambda, double *out, size_t *bad);
+
 #endif

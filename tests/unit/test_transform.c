@@ -134,6 +134,42 @@ static void test_boxcox(void **state)
     assert_int_equal(bad, 1);
 }
 
+static void test_inverses(void **state)
+{
+    (void)state;
+    double y[6] = {3, 1, 4, 1, 5, 9}, d[6], back[6];
+    size_t n;
+    /* undoing a lag-2 difference from the first two values rebuilds the rest */
+    assert_int_equal(fit_tr_diff(y, 6, 2, d, &n, NULL), HN_OK);
+    assert_int_equal(fit_tr_undiff(d, n, y, 2, back), HN_OK);
+    for (size_t i = 0; i < n; i++)
+        assert_true(back[i] == y[i + 2]);
+    /* forecasts of first differences 1, 2, 3 after a last value 10: 11, 13, 16 */
+    double f[3] = {1, 2, 3}, last = 10, lv[3];
+    assert_int_equal(fit_tr_undiff(f, 3, &last, 1, lv), HN_OK);
+    assert_true(lv[0] == 11 && lv[1] == 13 && lv[2] == 16);
+    assert_int_equal(fit_tr_undiff(f, 3, &last, 0, lv), HN_EINVAL);
+
+    /* Box-Cox and back: lambda 0.5 maps 2 to 4 (hand check), and round trips */
+    double z = 2.0, w;
+    assert_int_equal(fit_tr_inv_boxcox(&z, 1, 0.5, &w, NULL), HN_OK);
+    TU_NEAR(w, 4.0, 1e-15);
+    static const double lambdas[5] = {-1.0, -0.3, 0.0, 0.5, 2.0};
+    for (int k = 0; k < 5; k++) {
+        assert_int_equal(fit_tr_boxcox(y, 6, lambdas[k], d, NULL), HN_OK);
+        assert_int_equal(fit_tr_inv_boxcox(d, 6, lambdas[k], back, NULL), HN_OK);
+        for (size_t i = 0; i < 6; i++)
+            TU_NEAR(back[i], y[i], 1e-14);
+    }
+    /* lambda -1 maps onto z < 1 only: z = 1 has no inverse */
+    double zz[2] = {0.5, 1.0};
+    size_t bad;
+    assert_int_equal(fit_tr_inv_boxcox(zz, 2, -1.0, back, &bad), HN_EDOMAIN);
+    assert_int_equal(bad, 1);
+    double big = 1000.0;
+    assert_int_equal(fit_tr_inv_boxcox(&big, 1, 0.0, back, &bad), HN_ENUMERIC);
+}
+
 /* NIST StRD NumAcc3 / NumAcc4 / Michelso certified means (certified_values.csv),
  * read through the CSV loader. */
 static void test_mean_strd(void **state)
@@ -184,7 +220,8 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_log),    cmocka_unit_test(test_diff),
         cmocka_unit_test(test_sdiff),  cmocka_unit_test(test_demean),
-        cmocka_unit_test(test_boxcox), cmocka_unit_test(test_mean_strd),
+        cmocka_unit_test(test_boxcox), cmocka_unit_test(test_inverses),
+        cmocka_unit_test(test_mean_strd),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
