@@ -4,6 +4,7 @@
 #include "fit_optim.h"
 #include "hn_status.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -23,6 +24,7 @@ struct fit_arma_ws {
     size_t stride;   /* ring row: e, then nm derivatives */
     double *ring;
     double *acc;     /* nm gradient accumulators */
+    double *ring2;   /* second derivatives: nm * nm a row (fit_arma_hessian) */
 };
 
 fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec)
@@ -55,11 +57,14 @@ void fit_arma_ws_free(fit_arma_ws *w)
         return;
     free(w->ring);
     free(w->acc);
+    free(w->ring2);
     free(w);
 }
 
-int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
-                   double *e, double *de, double *ssr, double *gsum)
+/* The residual pass behind fit_arma_resid; JTJ (may be NULL) also receives
+ * sum de_t de_t' (nm x nm), the Gauss-Newton matrix of SSR / 2. */
+static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                      double *e, double *de, double *ssr, double *gsum, double *jtj)
 {
     if (!w || !y || (!mpar && w->nm > 0))
         return HN_EINVAL;
@@ -74,7 +79,12 @@ int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar
     const int *al = s->ar_lag, *ml = s->ma_lag;
     const size_t mask = w->mask, S = w->stride;
     double *ring = w->ring;
-    const int deriv = de != NULL || gsum != NULL;
+    const int deriv = de != NULL || gsum != NULL || jtj != NULL;
+    const size_t ntri = (size_t)nm * (size_t)(nm + 1) / 2;
+    double jacc[FIT_MAX_PARAMS * (FIT_MAX_PARAMS + 1) / 2];
+    if (jtj)
+        for (size_t k = 0; k < ntri; k++)
+            jacc[k] = 0.0;
 
     double sum_ar = 0.0;
     for (int i = 0; i < nar; i++)
@@ -118,6 +128,12 @@ int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar
         }
         for (int k = 0; k < nm; k++)
             acc[k] += et * d[k];
+        if (jtj) {
+            size_t idx = 0;
+            for (int k = 0; k < nm; k++)
+                for (int l = 0; l <= k; l++, idx++)
+                    jacc[idx] += d[k] * d[l];
+        }
         if (de)
             memcpy(de + (t - p) * (size_t)nm, d, (size_t)nm * sizeof *d);
     }
@@ -131,7 +147,149 @@ int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar
         *ssr = tot;
     if (gsum)
         memcpy(gsum, acc, (size_t)nm * sizeof *acc);
+    if (jtj) {
+        size_t idx = 0;
+        for (int k = 0; k < nm; k++)
+            for (int l = 0; l <= k; l++, idx++)
+                jtj[k * nm + l] = jtj[l * nm + k] = jacc[idx];
+    }
     return HN_OK;
+}
+
+int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                   double *e, double *de, double *ssr, double *gsum)
+{
+    return resid_pass(w, y, n, mpar, e, de, ssr, gsum, NULL);
+}
+
+/* The second-order pass behind fit_arma_hessian; E (may be NULL) also
+ * receives the residuals, as in fit_arma_resid. */
+static int hessian_pass(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                        double *e, double *ssr, double *gsum, double *hsum, double *jtj)
+{
+    if (!w || !y || (!mpar && w->nm > 0) || !hsum)
+        return HN_EINVAL;
+    const fit_spec *s = &w->spec;
+    const size_t p = (size_t)w->p;
+    if (n <= p)
+        return HN_EINVAL;
+    const int nm = w->nm, nar = s->n_ar, nma = s->n_ma;
+    const int off = s->mean ? 1 : 0, ma0 = off + nar;
+    /* second derivatives are kept as the packed lower triangle, k >= l,
+     * entry k (k + 1) / 2 + l */
+    const size_t ntri = (size_t)nm * (size_t)(nm + 1) / 2;
+    const size_t mask = w->mask, S = w->stride;
+    if (!w->ring2) {
+        w->ring2 = malloc((mask + 1) * (ntri ? ntri : 1) * sizeof *w->ring2);
+        if (!w->ring2)
+            return HN_ENOMEM;
+    }
+    const double mu = s->mean ? mpar[0] : 0.0;
+    const double *ar = mpar + off, *ma = mpar + off + nar;
+    const int *al = s->ar_lag, *ml = s->ma_lag;
+    double *ring = w->ring, *ring2 = w->ring2;
+    double sum_ar = 0.0;
+    for (int i = 0; i < nar; i++)
+        sum_ar += ar[i];
+    memset(ring, 0, (mask + 1) * S * sizeof *ring);
+    memset(ring2, 0, (mask + 1) * ntri * sizeof *ring2);
+    double hacc[FIT_MAX_PARAMS * (FIT_MAX_PARAMS + 1) / 2];
+    double jacc[FIT_MAX_PARAMS * (FIT_MAX_PARAMS + 1) / 2];
+    for (size_t k = 0; k < ntri; k++)
+        hacc[k] = jacc[k] = 0.0;
+    double *acc = w->acc;
+    for (int k = 0; k < nm; k++)
+        acc[k] = 0.0;
+    double sum = 0.0, comp = 0.0;
+
+    for (size_t t = p; t < n; t++) {
+        const double *yt = y + t;
+        double et = yt[0] - mu;
+        for (int i = 0; i < nar; i++)
+            et -= ar[i] * (yt[-al[i]] - mu);
+        for (int j = 0; j < nma; j++)
+            et -= ma[j] * ring[((t - (size_t)ml[j]) & mask) * S];
+        double *row = ring + (t & mask) * S, *d = row + 1;
+        double *restrict h2 = ring2 + (t & mask) * ntri;
+        row[0] = et;
+        double sq = et * et, tsum = sum + sq;
+        comp += fabs(sum) >= sq ? (sum - tsum) + sq : (sq - tsum) + sum;
+        sum = tsum;
+        if (off)
+            d[0] = sum_ar - 1.0;
+        for (int i = 0; i < nar; i++)
+            d[off + i] = -(yt[-al[i]] - mu);
+        for (int j = 0; j < nma; j++)
+            d[ma0 + j] = -ring[((t - (size_t)ml[j]) & mask) * S];
+        if (e)
+            e[t - p] = et;
+        if (nma == 0) {
+            for (size_t k = 0; k < ntri; k++)
+                h2[k] = 0.0;
+            if (off)
+                for (int i = 0; i < nar; i++)
+                    h2[(size_t)(off + i) * (size_t)(off + i + 1) / 2] = 1.0;
+        }
+        for (int j = 0; j < nma; j++) {
+            const size_t r = (t - (size_t)ml[j]) & mask;
+            const double *pd = ring + r * S + 1;
+            const double *restrict ph = ring2 + r * ntri;
+            const double c = ma[j];
+            for (int k = 0; k < nm; k++)
+                d[k] -= c * pd[k];
+            if (j == 0)
+                for (size_t k = 0; k < ntri; k++)
+                    h2[k] = -c * ph[k];
+            else
+                for (size_t k = 0; k < ntri; k++)
+                    h2[k] -= c * ph[k];
+            if (j == 0 && off)   /* the pairs (ar_i, mu): row off+i, column 0 */
+                for (int i = 0; i < nar; i++)
+                    h2[(size_t)(off + i) * (size_t)(off + i + 1) / 2] += 1.0;
+            /* the terms from differentiating -ma_j e_{t-m_j} by ma_j: the
+             * pair (q, k) gets -de_{t-m_j}/dth_k, the diagonal twice */
+            const int q = ma0 + j;
+            const size_t rq = (size_t)q * (size_t)(q + 1) / 2;
+            for (int k = 0; k < q; k++)
+                h2[rq + (size_t)k] -= pd[k];
+            h2[rq + (size_t)q] -= 2.0 * pd[q];
+            for (int k = q + 1; k < nm; k++)
+                h2[(size_t)k * (size_t)(k + 1) / 2 + (size_t)q] -= pd[k];
+        }
+        size_t idx = 0;
+        for (int k = 0; k < nm; k++) {
+            acc[k] += et * d[k];
+            const double dk = d[k];
+            for (int l = 0; l <= k; l++, idx++) {
+                double dd = dk * d[l];
+                jacc[idx] += dd;
+                hacc[idx] += dd + et * h2[idx];
+            }
+        }
+    }
+    double tot = sum + comp;
+    if (!isfinite(tot))
+        return HN_EDOMAIN;
+    size_t idx = 0;
+    for (int k = 0; k < nm; k++)
+        for (int l = 0; l <= k; l++, idx++) {
+            if (!isfinite(hacc[idx]))
+                return HN_EDOMAIN;
+            hsum[k * nm + l] = hsum[l * nm + k] = hacc[idx];
+            if (jtj)
+                jtj[k * nm + l] = jtj[l * nm + k] = jacc[idx];
+        }
+    if (ssr)
+        *ssr = tot;
+    if (gsum)
+        memcpy(gsum, acc, (size_t)nm * sizeof *acc);
+    return HN_OK;
+}
+
+int fit_arma_hessian(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                     double *ssr, double *gsum, double *hsum, double *jtj)
+{
+    return hessian_pass(w, y, n, mpar, NULL, ssr, gsum, hsum, jtj);
 }
 
 /* ---- start values ------------------------------------------------------ */
@@ -192,6 +350,66 @@ static void shrink_inside(const int *lag, double *c, int nterms, int sign)
 
 #define HR_MAX_ROWS 20000
 
+/* Pure AR on a long series: the least-squares coefficients from the normal
+ * equations, accumulated in one pass over centred values (sums in blocks of
+ * 4096 terms to limit rounding) and solved by Cholesky (LAPACKE_dposv).
+ * On a long series a QR of the whole design would cost many likelihood
+ * passes; the normal equations lose some digits when the design is
+ * ill-conditioned, which the optimiser's gradient check then recovers. */
+static int ar_normal_equations(const fit_spec *spec, const double *ys, size_t nn,
+                               double ctr, double *mpar)
+{
+    const int off = spec->mean ? 1 : 0, nar = spec->n_ar, c = off + nar;
+    const size_t P = (size_t)fit_spec_max_ar(spec), cc = (size_t)c;
+    double *A = calloc(3 * cc * cc + 3 * cc, sizeof *A);
+    if (!A)
+        return HN_ENOMEM;
+    double *Ab = A + cc * cc, *b = Ab + cc * cc, *bb = b + cc, *x = bb + cc;
+    double *L = x + cc;
+    for (size_t t0 = P; t0 < nn; t0 += 4096) {
+        size_t t1 = t0 + 4096 < nn ? t0 + 4096 : nn;
+        memset(Ab, 0, cc * cc * sizeof *Ab);
+        memset(bb, 0, cc * sizeof *bb);
+        for (size_t t = t0; t < t1; t++) {
+            if (off)
+                x[0] = 1.0;
+            for (int i = 0; i < nar; i++)
+                x[off + i] = ys[t - (size_t)spec->ar_lag[i]] - ctr;
+            double yt = ys[t] - ctr;
+            for (int k = 0; k < c; k++) {
+                bb[k] += x[k] * yt;
+                for (int l = 0; l <= k; l++)
+                    Ab[k * c + l] += x[k] * x[l];
+            }
+        }
+        for (size_t k = 0; k < cc * cc; k++)
+            A[k] += Ab[k];
+        for (size_t k = 0; k < cc; k++)
+            b[k] += bb[k];
+    }
+    for (int k = 0; k < c; k++)
+        for (int l = 0; l <= k; l++)
+            A[l * c + k] = A[k * c + l];
+    memcpy(L, A, cc * cc * sizeof *L);
+    lapack_int info = LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', c, 1, L, c, b, 1);
+    int rc = info == 0 ? HN_OK : info > 0 ? HN_ESINGULAR : HN_EINVAL;
+    for (int k = 0; rc == HN_OK && k < c; k++)
+        if (!isfinite(b[k]))
+            rc = HN_ENUMERIC;
+    if (rc == HN_OK) {
+        for (int i = 0; i < nar; i++)
+            mpar[off + i] = b[off + i];
+        if (off) {
+            double sa = 0.0;
+            for (int i = 0; i < nar; i++)
+                sa += b[off + i];
+            mpar[0] = fabs(1.0 - sa) > 1e-6 ? ctr + b[0] / (1.0 - sa) : ctr;
+        }
+    }
+    free(A);
+    return rc;
+}
+
 int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar)
 {
     if (!spec || !y || (!mpar && fit_arma_nmean(spec) > 0))
@@ -234,8 +452,8 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
         /* long autoregression */
         size_t mq = 2 * (P > Q ? P : Q);
         size_t ml = (size_t)ceil(10.0 * log10((double)nn));
-        if (ml > 40)
-            ml = 40;
+        if (ml > 30)
+            ml = 30;
         m = mq > ml ? mq : ml;
         if (m > 400)
             m = 400;
@@ -279,6 +497,10 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
     if (t0 < P)
         t0 = P;
     size_t rows = nn - t0, cols = (size_t)nm;
+    if (nma == 0 && rows > HR_MAX_ROWS) {
+        rc = ar_normal_equations(spec, ys, nn, ctr, mpar);
+        goto done;
+    }
     A = malloc(rows * cols * sizeof *A);
     B = malloc(rows * sizeof *B);
     if (!A || !B) {
@@ -352,6 +574,186 @@ static int css_objective(const double *x, double *f, double *grad, void *vctx)
     return HN_OK;
 }
 
+/* f, its gradient and the Gauss-Newton matrix M = J'J / SSR at X in one
+ * pass (J: the derivative rows de_t/dtheta); M is positive semi-definite and
+ * close to the Hessian of f near the optimum. */
+static int css_gn(css_ctx *c, const double *x, double *f, double *g, double *M)
+{
+    const int nm = c->ws->nm;
+    double ssr;
+    int rc = resid_pass(c->ws, c->z, c->n, x, NULL, NULL, &ssr, c->gs, M);
+    if (rc != HN_OK)
+        return rc;
+    if (!(ssr > 0.0))
+        return HN_EDOMAIN;
+    *f = 0.5 * (log(2.0 * M_PI * ssr / c->N) + 1.0);
+    for (int k = 0; k < nm; k++) {
+        g[k] = c->gs[k] / ssr;
+        for (int l = 0; l < nm; l++)
+            M[k * nm + l] /= ssr;
+    }
+    return HN_OK;
+}
+
+/* BFGS2 runs in preconditioned coordinates u, x = x0 + L^-T u, where L L'
+ * is the Hessian at the start (or its Gauss-Newton part when the Hessian is
+ * not positive definite there): then the Hessian in u is the identity at
+ * the start and BFGS begins close to Newton's method.  The gradient in u is
+ * L^-1 grad_x; the optimiser's tolerance applies to it (a Newton-decrement
+ * measure, free of the parameters' units). */
+typedef struct {
+    css_ctx *c;
+    int nm;
+    const double *x0, *L;   /* L: lower Cholesky factor, row-major */
+    double *xt, *gt;
+} pre_ctx;
+
+/* V = L^-T U (back substitution); the caller adds x0. */
+static void pre_to_x(const pre_ctx *p, const double *u, double *x)
+{
+    const int nm = p->nm;
+    for (int i = nm - 1; i >= 0; i--) {
+        double v = u[i];
+        for (int k = i + 1; k < nm; k++)
+            v -= p->L[k * nm + i] * x[k];
+        x[i] = v / p->L[i * nm + i];
+    }
+}
+
+static int pre_objective(const double *u, double *f, double *grad, void *vctx)
+{
+    pre_ctx *p = vctx;
+    const int nm = p->nm;
+    pre_to_x(p, u, p->xt);
+    for (int i = 0; i < nm; i++)
+        p->xt[i] += p->x0[i];
+    int rc = css_objective(p->xt, f, grad ? p->gt : NULL, p->c);
+    if (rc != HN_OK || !grad)
+        return rc;
+    /* grad_u = L^-1 grad_x (forward substitution) */
+    for (int i = 0; i < nm; i++) {
+        double v = p->gt[i];
+        for (int k = 0; k < i; k++)
+            v -= p->L[i * nm + k] * grad[k];
+        grad[i] = v / p->L[i * nm + i];
+    }
+    return HN_OK;
+}
+
+/* Lower Cholesky factor of the nm x nm matrix A into L; 0 on success. */
+static int cholesky(int nm, const double *A, double *L)
+{
+    memcpy(L, A, (size_t)nm * (size_t)nm * sizeof *L);
+    if (LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', nm, L, nm) != 0)
+        return -1;
+    double dmax = 0.0, dmin = INFINITY;
+    for (int i = 0; i < nm; i++) {
+        for (int k = i + 1; k < nm; k++)
+            L[i * nm + k] = 0.0;
+        double d = fabs(L[i * nm + i]);
+        if (d > dmax) dmax = d;
+        if (d < dmin) dmin = d;
+    }
+    return dmin > 1e-8 * dmax ? 0 : -1;
+}
+
+/* Newton decrement sqrt(g' H^-1 g) from the Cholesky factor L of H. */
+static double decrement(int nm, const double *L, const double *g, double *tmp)
+{
+    double s2 = 0.0;
+    for (int i = 0; i < nm; i++) {
+        double v = g[i];
+        for (int k = 0; k < i; k++)
+            v -= L[i * nm + k] * tmp[k];
+        tmp[i] = v / L[i * nm + i];
+        s2 += tmp[i] * tmp[i];
+    }
+    return sqrt(s2);
+}
+
+/* Minimise f from X (overwritten).
+ *   1. Gauss-Newton steps x <- x - M^-1 g (at most 8), each kept only when f
+ *      does not rise beyond rounding; they stop at the tolerance (measured
+ *      as the decrement sqrt(g' M^-1 g)), at a singular M or at a rejected
+ *      step.  On a long series each step gains about a factor sqrt(N).
+ *   2. BFGS2 (fit_optim_minimise) from there in coordinates preconditioned by
+ *      the Cholesky factor of M, where its gradient tolerance is the same
+ *      decrement; after successful Gauss-Newton steps it confirms
+ *      convergence at its first evaluation.
+ * REP counts Gauss-Newton steps as iterations and their passes as
+ * evaluations, on top of BFGS2's own. */
+static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_report *rep)
+{
+    const int nm = c->ws->nm;
+    const size_t nn = (size_t)nm * (size_t)nm;
+    double *buf = malloc((3 * nn + 7 * (size_t)nm) * sizeof *buf);
+    if (!buf)
+        return HN_ENOMEM;
+    double *M = buf, *M1 = M + nn, *L = M1 + nn;
+    double *x0 = L + nn, *u = x0 + nm, *xt = u + nm, *gt = xt + nm, *g = gt + nm;
+    double *x1 = g + nm, *g1 = x1 + nm;
+    int steps = 0, passes = 1;
+    double f;
+    int rc = css_gn(c, x, &f, g, M);
+    if (rc != HN_OK) {
+        free(buf);
+        return rc;
+    }
+    int have_L = cholesky(nm, M, L) == 0;
+    while (have_L && steps < 8 && decrement(nm, L, g, u) >= o->grad_tol) {
+        if (o->interrupt && *o->interrupt) {
+            free(buf);
+            return HN_EINTR;
+        }
+        /* x1 = x - M^-1 g = x + L^-T (-L^-1 g); u holds L^-1 g */
+        for (int i = 0; i < nm; i++)
+            u[i] = -u[i];
+        pre_ctx p0 = { c, nm, x, L, xt, gt };
+        pre_to_x(&p0, u, x1);
+        for (int i = 0; i < nm; i++)
+            x1[i] += x[i];
+        double f1;
+        passes++;
+        if (css_gn(c, x1, &f1, g1, M1) != HN_OK ||
+            f1 > f + 64 * DBL_EPSILON * (1.0 + fabs(f)))
+            break;
+        memcpy(x, x1, (size_t)nm * sizeof *x);
+        memcpy(M, M1, nn * sizeof *M);
+        memcpy(g, g1, (size_t)nm * sizeof *g);
+        f = f1;
+        steps++;
+        have_L = cholesky(nm, M, L) == 0;
+    }
+    if (!have_L) {
+        memset(L, 0, nn * sizeof *L);
+        for (int i = 0; i < nm; i++)
+            L[i * nm + i] = 1.0;
+    }
+    memcpy(x0, x, (size_t)nm * sizeof *x0);
+    double gnorm = decrement(nm, L, g, u);
+    memset(u, 0, (size_t)nm * sizeof *u);
+    pre_ctx p = { c, nm, x0, L, xt, gt };
+    fit_optim_options oo = fit_optim_default_options();
+    oo.max_iter = o->max_iter;
+    oo.grad_tol = o->grad_tol;
+    oo.interrupt = o->interrupt;
+    oo.line_tol = 0.9;      /* the usual curvature constant for quasi-Newton */
+    /* the first trial step: the Gauss-Newton step's length in u */
+    oo.step = gnorm < 1e-6 ? 1e-6 : gnorm > 1.0 ? 1.0 : gnorm;
+    rc = fit_optim_minimise(nm, u, pre_objective, &p, &oo, rep);
+    if (rep) {
+        rep->iterations += steps;
+        rep->evaluations += passes;
+    }
+    if (rc == HN_OK || rc == HN_ENOCONV || rc == HN_EINTR) {
+        pre_to_x(&p, u, x);
+        for (int i = 0; i < nm; i++)
+            x[i] += x0[i];
+    }
+    free(buf);
+    return rc;
+}
+
 int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
                       const fit_options *opt, fit_result *res)
 {
@@ -410,26 +812,20 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     fit_optim_report rep;
     memset(&rep, 0, sizeof rep);
     if (nm > 0) {
-        fit_optim_options oo = fit_optim_default_options();
-        oo.max_iter = o.max_iter;
-        oo.grad_tol = o.grad_tol;
-        oo.interrupt = o.interrupt;
-        int orc = fit_optim_minimise(nm, x, css_objective, &ctx, &oo, &rep);
-        if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL) {
-            rc = orc;
-            goto fail;
-        }
+        int orc = css_minimise(&ctx, x, &o, &rep);
         if (orc == HN_EDOMAIN) {
             /* the start itself was infeasible: retry from zero coefficients */
-            for (int k = off; k < nm; k++)
+            int ev = rep.evaluations;
+            for (int k = 0; k < nm; k++)
                 x[k] = 0.0;
-            if (off)
-                x[0] = 0.0;
-            orc = fit_optim_minimise(nm, x, css_objective, &ctx, &oo, &rep);
-            if (orc == HN_EINTR || orc == HN_EDOMAIN || orc == HN_ENOMEM) {
-                rc = orc == HN_EDOMAIN ? HN_ENUMERIC : orc;
-                goto fail;
-            }
+            orc = css_minimise(&ctx, x, &o, &rep);
+            rep.evaluations += ev;
+            if (orc == HN_EDOMAIN)
+                orc = HN_ENUMERIC;
+        }
+        if (orc != HN_OK && orc != HN_ENOCONV) {
+            rc = orc;
+            goto fail;
         }
         res->converged = orc == HN_OK;
     } else {
@@ -441,43 +837,59 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     if (!res->converged)
         res->warnings |= FIT_WARN_NOCONV;
 
-    /* residuals and likelihood at the optimum, in the units of the data */
+    /* one second-order pass at the optimum: residuals, SSR, gradient and
+     * the exact Hessian of f = 1/2 (log(2 pi SSR/N) + 1),
+     *   d2f = A / SSR - 2 g g' / SSR^2,  A = sum (de de' + e d2e), g = sum e de */
     double ssr_z;
-    if ((rc = fit_arma_resid(ws, z, n, x, res->resid, NULL, &ssr_z, NULL)) != HN_OK) {
-        rc = HN_ENUMERIC;
+    if (nm > 0)
+        rc = hessian_pass(ws, z, n, x, res->resid, &ssr_z, gs, H, NULL);
+    else
+        rc = fit_arma_resid(ws, z, n, x, res->resid, NULL, &ssr_z, NULL);
+    if (rc != HN_OK || !(ssr_z > 0.0)) {
+        rc = rc == HN_ENOMEM ? rc : HN_ENUMERIC;
         goto fail;
     }
+    res->evaluations++;
     const double N = (double)(n - p);
     for (int k = 0; k < nm; k++)
         res->par[k] = x[k];
     if (off)
         res->par[0] = loc + scale * x[0];
-    for (size_t t = 0; t < n - p; t++)
-        res->resid[t] *= scale;
     double ssr = ssr_z * scale * scale;
     res->sigma2 = ssr / N;
     res->loglik = -0.5 * N * (log(2.0 * M_PI * res->sigma2) + 1.0);
-    double sd = sqrt(res->sigma2);
-    for (size_t t = 0; t < n - p; t++)
-        res->std_resid[t] = res->resid[t] / sd;
+    const double sd = sqrt(res->sigma2);
+    for (size_t t = 0; t < n - p; t++) {
+        double et = res->resid[t] * scale;
+        res->resid[t] = et;
+        res->std_resid[t] = et / sd;
+    }
 
     /* standard errors: the Hessian of the profile negative log-likelihood
      * N f in the standardised parameters, mapped back with the Jacobian
-     * d x_z / d x = diag(1/scale, 1, ..., 1). */
+     * d x_z / d x = diag(1/scale, 1, ..., 1) */
     if (nm > 0) {
-        if (fit_hessian_fd(nm, x, css_objective, &ctx, H) == HN_OK) {
-            for (int i = 0; i < nm; i++)
-                for (int j = 0; j < nm; j++) {
-                    double v = N * H[i * nm + j];
-                    if (off && i == 0) v /= scale;
-                    if (off && j == 0) v /= scale;
-                    H[i * nm + j] = v;
-                }
-            if ((rc = fit_result_covariance(res, H)) != HN_OK)
-                goto fail;
-        } else {
-            res->warnings |= FIT_WARN_SINGULAR;
+        double gn = 0.0;
+        for (int k = 0; k < nm; k++) {
+            double gk = gs[k] / ssr_z;
+            gn += gk * gk;
         }
+        res->grad_norm = sqrt(gn);
+        for (int k = 0; k < nm; k++)
+            for (int l = 0; l < nm; l++)
+                H[k * nm + l] = H[k * nm + l] / ssr_z - 2.0 * gs[k] * gs[l] / (ssr_z * ssr_z);
+        for (int i = 0; i < nm; i++)
+            for (int j = 0; j < nm; j++) {
+                double v = N * H[i * nm + j];
+                if (off && i == 0) v /= scale;
+                if (off && j == 0) v /= scale;
+                H[i * nm + j] = v;
+            }
+        for (int i = 0; i < nm; i++)          /* exact symmetry */
+            for (int j = 0; j < i; j++)
+                H[i * nm + j] = H[j * nm + i] = 0.5 * (H[i * nm + j] + H[j * nm + i]);
+        if ((rc = fit_result_covariance(res, H)) != HN_OK)
+            goto fail;
     }
     fit_result_criteria(res, nm + 1);
     if ((rc = fit_result_roots(res)) != HN_OK)

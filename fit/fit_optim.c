@@ -23,41 +23,50 @@ fit_optim_options fit_optim_default_options(void)
     return o;
 }
 
-/* What the GSL callbacks need: the caller's objective, and the value that
- * stands in for an infeasible point so that the line search backs off. */
+/* What the GSL callbacks need: the caller's objective, the value that
+ * stands in for an infeasible point so that the line search backs off, and
+ * the last point evaluated.  GSL's line search asks for f and then for the
+ * gradient at the same trial point; every evaluation computes both, so the
+ * second request is answered from the cache. */
+#define MAX_NP 256
 typedef struct {
     fit_objective fn;
     void *ctx;
     int np;
     int evaluations;
     double bad_f;
+    int cached;
+    double xc[MAX_NP], fc, gc[MAX_NP];
 } driver;
 
-static int eval(driver *d, const gsl_vector *v, double *f, double *g)
+static void eval(driver *d, const gsl_vector *v, double *f, double *g)
 {
+    double xs[MAX_NP];
     const double *x = v->data;
-    double xs[256];
-    /* The objective takes a contiguous array; GSL vectors we create are
-     * contiguous (stride 1), so copying is needed only otherwise. */
+    size_t np = (size_t)d->np;
     if (v->stride != 1) {
-        for (int i = 0; i < d->np && i < 256; i++)
-            xs[i] = gsl_vector_get(v, (size_t)i);
+        for (size_t i = 0; i < np; i++)
+            xs[i] = gsl_vector_get(v, i);
         x = xs;
     }
-    d->evaluations++;
-    int rc = d->fn(x, f, g, d->ctx);
-    int ok = rc == HN_OK && isfinite(*f);
-    if (ok && g)
-        for (int i = 0; i < d->np; i++)
-            if (!isfinite(g[i]))
+    if (!d->cached || memcmp(x, d->xc, np * sizeof *x) != 0) {
+        d->evaluations++;
+        int rc = d->fn(x, &d->fc, d->gc, d->ctx);
+        int ok = rc == HN_OK && isfinite(d->fc);
+        for (size_t i = 0; ok && i < np; i++)
+            if (!isfinite(d->gc[i]))
                 ok = 0;
-    if (!ok) {
-        *f = d->bad_f;
-        if (g)
-            for (int i = 0; i < d->np; i++)
-                g[i] = 0.0;
+        if (!ok) {
+            d->fc = d->bad_f;
+            for (size_t i = 0; i < np; i++)
+                d->gc[i] = 0.0;
+        }
+        memcpy(d->xc, x, np * sizeof *x);
+        d->cached = 1;
     }
-    return ok ? HN_OK : HN_EDOMAIN;
+    *f = d->fc;
+    if (g)
+        memcpy(g, d->gc, np * sizeof *g);
 }
 
 static double cb_f(const gsl_vector *x, void *params)
@@ -156,44 +165,40 @@ int fit_optim_minimise(int np, double *x, fit_objective fn, void *ctx,
     memset(&r, 0, sizeof r);
     if (rep)
         *rep = r;
-    if (np <= 0 || np > 256 || !x || !fn)
+    if (np <= 0 || np > MAX_NP || !x || !fn)
         return HN_EINVAL;
     gsl_set_error_handler_off();
 
-    driver d = { fn, ctx, np, 0, 0.0 };
-    double *g0 = malloc((size_t)np * sizeof *g0);
-    if (!g0)
-        return HN_ENOMEM;
-    double f0;
-    d.evaluations = 1;
-    int rc = fn(x, &f0, g0, ctx);
-    if (rc == HN_OK && !isfinite(f0))
+    driver dd = { fn, ctx, np, 0, 0.0, 0, { 0 }, 0.0, { 0 } };
+    driver *const d = &dd;
+    /* the start, evaluated once: it seeds the cache for GSL's first call */
+    d->evaluations = 1;
+    int rc = fn(x, &d->fc, d->gc, ctx);
+    if (rc == HN_OK && !isfinite(d->fc))
         rc = HN_EDOMAIN;
     for (int i = 0; rc == HN_OK && i < np; i++)
-        if (!isfinite(g0[i]))
+        if (!isfinite(d->gc[i]))
             rc = HN_EDOMAIN;
-    if (rc != HN_OK) {
-        free(g0);
-        if (rep)
-            rep->evaluations = d.evaluations;
-        return rc == HN_EDOMAIN ? HN_EDOMAIN : rc;
-    }
+    if (rep)
+        rep->evaluations = d->evaluations;
+    if (rc != HN_OK)
+        return rc;
+    memcpy(d->xc, x, (size_t)np * sizeof *x);
+    d->cached = 1;
     /* Far above any value reached from the start, yet finite, so the
      * interpolating line search shortens the step. */
-    d.bad_f = fabs(f0) * 1e6 + 1e6;
-    r.f = f0;
-    r.grad_norm = norm2(g0, np);
-    r.evaluations = d.evaluations;
+    d->bad_f = fabs(d->fc) * 1e6 + 1e6;
+    r.f = d->fc;
+    r.grad_norm = norm2(d->gc, np);
+    r.evaluations = d->evaluations;
     if (r.grad_norm < o.grad_tol) {
-        free(g0);
         r.converged = 1;
         if (rep)
             *rep = r;
         return HN_OK;
     }
-    free(g0);
 
-    gsl_multimin_function_fdf fdf = { cb_f, cb_df, cb_fdf, (size_t)np, &d };
+    gsl_multimin_function_fdf fdf = { cb_f, cb_df, cb_fdf, (size_t)np, d };
     gsl_multimin_fdfminimizer *m =
         gsl_multimin_fdfminimizer_alloc(gsl_multimin_fdfminimizer_vector_bfgs2, (size_t)np);
     gsl_vector *v = gsl_vector_alloc((size_t)np);
@@ -220,7 +225,7 @@ int fit_optim_minimise(int np, double *x, fit_objective fn, void *ctx,
         r.iterations++;
         const gsl_vector *g = gsl_multimin_fdfminimizer_gradient(m);
         double gn = norm2(g->data, np);
-        if (gn < o.grad_tol && m->f < d.bad_f) {
+        if (gn < o.grad_tol && m->f < d->bad_f) {
             status = HN_OK;
             break;
         }
@@ -239,7 +244,7 @@ int fit_optim_minimise(int np, double *x, fit_objective fn, void *ctx,
 
     const gsl_vector *xb = gsl_multimin_fdfminimizer_x(m);
     const gsl_vector *gb = gsl_multimin_fdfminimizer_gradient(m);
-    if (m->f < d.bad_f && isfinite(m->f)) {
+    if (m->f < d->bad_f && isfinite(m->f)) {
         for (int i = 0; i < np; i++)
             x[i] = gsl_vector_get(xb, (size_t)i);
         r.f = m->f;
@@ -249,10 +254,10 @@ int fit_optim_minimise(int np, double *x, fit_objective fn, void *ctx,
         int pe = 0;
         if (newton_polish(np, x, &r.f, &r.grad_norm, fn, ctx, o.grad_tol, &pe) == HN_OK)
             status = HN_OK;
-        d.evaluations += pe;
+        d->evaluations += pe;
     }
     r.converged = status == HN_OK;
-    r.evaluations = d.evaluations;
+    r.evaluations = d->evaluations;
     if (rep)
         *rep = r;
     gsl_multimin_fdfminimizer_free(m);

@@ -88,6 +88,64 @@ static void test_gradient(void **state)
     free(y);
 }
 
+/* The analytic second-order pass against central differences of the
+ * analytic gradient sums (self-consistency, common practice), and its
+ * Gauss-Newton part against the stored derivative rows. */
+static void test_hessian(void **state)
+{
+    (void)state;
+    const char *specs[] = { "arma(2,1)", "ar[1,3]+ma[2]", "ma(2) nomean", "ar[1,4]+ma[1,3]",
+                            "ar(1)" };
+    const size_t n = 300;
+    double *y = malloc(n * sizeof *y);
+    fit_spec gen = spec_of("arma(1,1)");
+    double gp[] = { -1.0, 0.4, 0.3, 2.0 };
+    assert_int_equal(fit_simulate(&gen, gp, n, 50, 17, y), HN_OK);
+    unsigned st = 777u;
+    for (size_t si = 0; si < sizeof specs / sizeof *specs; si++) {
+        fit_spec s = spec_of(specs[si]);
+        int nm = fit_arma_nmean(&s), off = s.mean ? 1 : 0;
+        size_t N = n - (size_t)fit_spec_max_ar(&s);
+        fit_arma_ws *w = fit_arma_ws_alloc(&s);
+        double *de = malloc(N * (size_t)nm * sizeof *de);
+        double x[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], H[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
+        double J[FIT_MAX_PARAMS * FIT_MAX_PARAMS], ssr, ssr2, g2[FIT_MAX_PARAMS];
+        if (off)
+            x[0] = -0.5 - unif(&st);
+        for (int k = off; k < nm; k++)
+            x[k] = 0.6 * (unif(&st) - 0.5);
+        assert_int_equal(fit_arma_hessian(w, y, n, x, &ssr, g, H, J), HN_OK);
+        assert_int_equal(fit_arma_resid(w, y, n, x, NULL, de, &ssr2, g2), HN_OK);
+        TU_NEAR(ssr, ssr2, 1e-13);
+        for (int k = 0; k < nm; k++) {
+            TU_NEAR(g[k], g2[k], 1e-12 * (1.0 + fabs(g2[k])));
+            double xp[FIT_MAX_PARAMS], xm[FIT_MAX_PARAMS], gp_[FIT_MAX_PARAMS], gm[FIT_MAX_PARAMS];
+            memcpy(xp, x, sizeof x);
+            memcpy(xm, x, sizeof x);
+            xp[k] += 1e-6;
+            xm[k] -= 1e-6;
+            assert_int_equal(fit_arma_resid(w, y, n, xp, NULL, NULL, &ssr2, gp_), HN_OK);
+            assert_int_equal(fit_arma_resid(w, y, n, xm, NULL, NULL, &ssr2, gm), HN_OK);
+            for (int l = 0; l < nm; l++) {
+                double fd = (gp_[l] - gm[l]) / 2e-6;
+                double an = H[l * nm + k];
+                if (!(fabs(fd - an) <= 1e-5 * (1.0 + fabs(an)))) {
+                    print_error("%s H[%d][%d]: analytic %.10g, finite difference %.10g\n",
+                                specs[si], l, k, an, fd);
+                    fail();
+                }
+                double jj = 0.0;
+                for (size_t t = 0; t < N; t++)
+                    jj += de[t * (size_t)nm + k] * de[t * (size_t)nm + l];
+                TU_NEAR(J[k * nm + l], jj, 1e-10 * (1.0 + fabs(jj)));
+            }
+        }
+        free(de);
+        fit_arma_ws_free(w);
+    }
+    free(y);
+}
+
 /* (2) Box-Jenkins Series F, AR(2) with mean by conditional least squares. */
 static void test_series_f(void **state)
 {
@@ -371,6 +429,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_gradient),
+        cmocka_unit_test(test_hessian),
         cmocka_unit_test(test_series_f),
         cmocka_unit_test(test_series_f_ma),
         cmocka_unit_test(test_recovery),
