@@ -223,6 +223,46 @@ static void test_holdout_run_by_hand(void **state)
     assert_int_equal(fit_holdout_run(y, 13, &s, NULL, 13, 0.95, &ho), HN_EINVAL);
 }
 
+/* Hold-out with a GARCH part: the same numbers as fitting the training span,
+ * forecasting and scoring by hand from the parts. */
+static void test_holdout_garch_parts(void **state)
+{
+    (void)state;
+    fit_spec s = spec_of("ar(1)+garch(1,1)");
+    const double par[5] = { 0.5, 0.3, 0.05, 0.1, 0.85 };
+    const size_t n = 1200;
+    double *y = simulate(&s, par, n, 35UL);
+    const int h = 20;
+    fit_holdout ho;
+    assert_int_equal(fit_holdout_run(y, n, &s, NULL, h, 0.9, &ho), HN_OK);
+    fit_result r;
+    assert_int_equal(fit_model(y, n - h, &s, NULL, &r), HN_OK);
+    fit_forecast *fc = fit_forecast_alloc(h);
+    assert_non_null(fc);
+    assert_int_equal(fit_forecast_run(&r, y, n - h, 0.9, fc), HN_OK);
+    double sa = 0.0, s2 = 0.0, sn = 0.0;
+    int in = 0;
+    for (int k = 0; k < h; k++) {
+        double d = y[n - h + k] - fc->mean[k];
+        sa += fabs(d);
+        s2 += d * d;
+        in += y[n - h + k] >= fc->lo[k] && y[n - h + k] <= fc->hi[k];
+        TU_NEAR(ho.fc->mean[k], fc->mean[k], 1e-12);
+        TU_NEAR(ho.fc->cond_var[k], fc->cond_var[k], 1e-12);
+    }
+    for (size_t t = 1; t < n - h; t++)
+        sn += fabs(y[t] - y[t - 1]);
+    TU_NEAR(ho.sc.mae, sa / h, 1e-12);
+    TU_NEAR(ho.sc.rmse, sqrt(s2 / h), 1e-12);
+    TU_NEAR(ho.sc.mase, (sa / h) / (sn / (double)(n - h - 1)), 1e-12);
+    assert_int_equal(ho.sc.inside, in);
+    assert_int_equal(ho.fit.n, n - h);
+    fit_forecast_free(fc);
+    fit_result_free(&r);
+    fit_holdout_free(&ho);
+    free(y);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -232,6 +272,7 @@ int main(void)
         cmocka_unit_test(test_ar1_garch_t),
         cmocka_unit_test(test_holdout_scores_by_hand),
         cmocka_unit_test(test_holdout_run_by_hand),
+        cmocka_unit_test(test_holdout_garch_parts),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
