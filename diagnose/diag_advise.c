@@ -290,12 +290,11 @@ static void serial_rule(adv_state *st)
                      crit, part ? "ACF" : "PACF", k, r[k - 1], b->band, z, p, how);
         }
     }
-    if (found)
-        return;
-    /* The portmanteau fails but no single lag leaves the band: the next
-     * orders, on the criterion's evidence. */
-    double p = b->crit_p[DIAG_SERIAL];
+    /* The next order of each part is always a neighbour: the smallest
+     * change.  Its evidence is its own lag's value when spikes were found,
+     * else (no single lag leaves the band) the criterion's p. */
     for (int part = 0; part < 2; part++) {
+        const double *r = part ? b->acf : b->pacf;
         const int *have = part ? cur->ma_lag : cur->ar_lag;
         int nhave = part ? cur->n_ma : cur->n_ar;
         int k = 1;
@@ -304,10 +303,24 @@ static void serial_rule(adv_state *st)
         fit_spec s = *cur;
         if ((part ? fit_spec_add_ma(&s, k) : fit_spec_add_ar(&s, k)) != HN_OK)
             continue;
-        add_item(st, part ? DIAG_ADV_MA : DIAG_ADV_AR, &s, DIAG_SERIAL, worst_check(b, DIAG_SERIAL) ?
-                 worst_check(b, DIAG_SERIAL)->name : NULL, k, NAN, p, strength_of(p),
-                 "%s; no single lag leaves the band +/-%.3f, so the next %s lag (%d) is the smallest change",
-                 crit, b->band, part ? "MA" : "AR", k);
+        const char *what = part ? "MA" : "AR";
+        const char *fn = part ? "ACF" : "PACF";
+        if (found && k <= b->acf_lags) {
+            double z = fabs(r[k - 1]) * sqn;
+            double p = 2.0 * gsl_cdf_ugaussian_Q(z);
+            add_item(st, part ? DIAG_ADV_MA : DIAG_ADV_AR, &s, DIAG_SERIAL, part ? "acf" : "pacf", k,
+                     r[k - 1], p, strength_of(p),
+                     "%s; residual %s at lag %d is %.3f, %s the band +/-%.3f (z %.1f, p %.2g): the "
+                     "next %s lag is the smallest change", crit, fn, k, r[k - 1],
+                     fabs(r[k - 1]) > b->band ? "outside" : "inside", b->band, z, p, what);
+        } else {
+            double p = b->crit_p[DIAG_SERIAL];
+            const diag_test *w = worst_check(b, DIAG_SERIAL);
+            add_item(st, part ? DIAG_ADV_MA : DIAG_ADV_AR, &s, DIAG_SERIAL, w ? w->name : NULL, k, NAN,
+                     p, strength_of(p),
+                     "%s; no single lag leaves the band +/-%.3f, so the next %s lag (%d) is the smallest "
+                     "change", crit, b->band, what, k);
+        }
     }
 }
 

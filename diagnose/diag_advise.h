@@ -4,8 +4,9 @@
  *   no serial correlation fails: a residual PACF spike at lag k proposes an
  *     AR term at k (the next order when k is one past a full AR(p), a
  *     chosen-lag term otherwise); an ACF spike at k an MA term at k; a spike
- *     at the seasonal period is labelled seasonal; when the portmanteau
- *     fails and no single lag leaves the band, the next AR and MA orders;
+ *     at the seasonal period is labelled seasonal; the next AR lag and the
+ *     next MA lag are always offered as the smallest change (on the
+ *     criterion's p when no single lag leaves the band);
  *   mean zero fails: difference when the unit-root result says so, else add
  *     the constant when the model has none, else name a level shift;
  *   volatility clustering fails without GARCH: add GARCH(1,1) (and, when the

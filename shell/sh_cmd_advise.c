@@ -197,7 +197,7 @@ static int cmd_refine(sh_session *s, sh_words *w)
     char spec[128];
     fit_spec_format(&m->fit.spec, spec, sizeof spec);
     sh_printf(s, "refine from model %d  %s: at most %d rounds; a proposal wins by passing more "
-              "criteria, then by smaller %s per residual\n", m->id, spec, o.max_steps, ic_name(o.by));
+              "criteria, then by a criterion (%s) smaller by more than 2\n", m->id, spec, o.max_steps, ic_name(o.by));
     sh_refine_result *r = malloc(sizeof *r);
     if (!r)
         return sh_fail(s, -1, "out of memory");
@@ -394,9 +394,11 @@ const sh_command sh_cmds_advise[] = {
       "follow the advice until the residuals pass or nothing improves",
       { "max", "by", NULL }, 0, 0, cmd_refine,
       "  Each round fits and checks every proposal (all are kept in 'models')\n"
-      "  and moves to the one passing the most criteria, ties by the smaller\n"
-      "  criterion per residual (AICc by default).  Stops when the residuals\n"
-      "  pass, nothing improves, or after max= rounds (default 8).\n" },
+      "  and moves to the one passing the most criteria; on equal counts the\n"
+      "  criterion (AICc by default, compared per residual) must be smaller by\n"
+      "  more than 2, and near-ties go to fewer parameters, then AR over MA.\n"
+      "  Stops when the residuals pass, nothing improves, or after max= rounds\n"
+      "  (default 8).  docs/advice.md has the rules.\n" },
     { "scan", "scan p=LO..HI q=LO..HI [garch=yes|no] [by=bic|aicc] [dist=normal|t]",
       "fit and check a grid of ARMA(p,q) models on all cores",
       { "p", "q", "garch", "by", "dist", NULL }, 0, 0, cmd_scan,

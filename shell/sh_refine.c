@@ -93,13 +93,38 @@ sh_refine_options sh_refine_default_options(void)
     return o;
 }
 
-/* 1 when model A is better than model B (both checked). */
-static int better(const sh_model *a, const sh_model *b, sh_ic ic)
+/* Criterion difference A - B in criterion units, from the per-residual
+ * values scaled back by the smaller residual count. */
+static double ic_delta(const sh_model *a, const sh_model *b, sh_ic ic)
+{
+    size_t n = a->fit.n_eff < b->fit.n_eff ? a->fit.n_eff : b->fit.n_eff;
+    return (sh_ic_per_obs(&a->fit, ic) - sh_ic_per_obs(&b->fit, ic)) * (double)n;
+}
+
+/* 1 when model A is clearly better than model B (both checked): more
+ * criteria passed, or as many and a criterion smaller by more than
+ * SH_IC_MARGIN. */
+static int clearly_better(const sh_model *a, const sh_model *b, sh_ic ic)
 {
     int pa = sh_criteria_passed(&a->battery), pb = sh_criteria_passed(&b->battery);
     if (pa != pb)
         return pa > pb;
-    return sh_ic_per_obs(&a->fit, ic) < sh_ic_per_obs(&b->fit, ic);
+    return ic_delta(a, b, ic) < -SH_IC_MARGIN;
+}
+
+/* Within one round: 1 when proposal A is preferred to the best so far B:
+ * clearly better; or, passing as many with criteria within the margin,
+ * fewer parameters, or as many and fewer MA terms. */
+static int preferred(const sh_model *a, const sh_model *b, sh_ic ic)
+{
+    if (clearly_better(a, b, ic))
+        return 1;
+    if (sh_criteria_passed(&a->battery) != sh_criteria_passed(&b->battery) ||
+        fabs(ic_delta(a, b, ic)) > SH_IC_MARGIN)
+        return 0;
+    if (a->fit.k_ic != b->fit.k_ic)
+        return a->fit.k_ic < b->fit.k_ic;
+    return a->fit.spec.n_ma < b->fit.spec.n_ma;
 }
 
 static void finish(sh_session *s, sh_refine_result *r, int cur, sh_stop stop, const char *fmt, ...)
@@ -190,7 +215,7 @@ int sh_refine(sh_session *s, const sh_refine_options *opt, sh_refine_result *r)
             }
             st->tried++;
             int k = id - 1;
-            if (best < 0 || better(&s->models[k], &s->models[best], opt->by)) {
+            if (best < 0 || preferred(&s->models[k], &s->models[best], opt->by)) {
                 best = k;
                 best_item = i;
             }
@@ -200,16 +225,25 @@ int sh_refine(sh_session *s, const sh_refine_options *opt, sh_refine_result *r)
                    r->fitted);
             return HN_OK;
         }
-        int accept = best >= 0 && better(&s->models[best], &s->models[cur], opt->by) &&
-                     (!cur_white || s->models[best].battery.white);
+        int accept = 0;
+        if (best >= 0) {
+            const sh_model *b = &s->models[best], *c = &s->models[cur];
+            if (!cur_white)
+                accept = clearly_better(b, c, opt->by);
+            else if (b->battery.white) {
+                double dl = ic_delta(b, c, opt->by);
+                accept = dl < -SH_IC_MARGIN || (b->fit.k_ic < c->fit.k_ic && dl < 0);
+            }
+        }
         if (!accept) {
             if (cur_white)
                 finish(s, r, cur, SH_STOP_WHITE, "the residuals of model %d pass every white-noise "
-                       "criterion; none of the %d neighbours tried is simpler by %s and still passing",
+                       "criterion; none of the %d neighbours tried still passes with a smaller %s (by more "
+                       "than 2 unless it is simpler)",
                        cur_id, st->tried, opt->by == SH_IC_BIC ? "BIC" : "AICc");
             else
                 finish(s, r, cur, SH_STOP_NO_IMPROVEMENT, "none of the %d proposals fitted on model %d "
-                       "passes more criteria or, passing as many, has a smaller %s per residual; "
+                       "passes more criteria or, passing as many, has its %s smaller by more than 2; "
                        "model %d passes %d of 5 criteria", st->tried, cur_id,
                        opt->by == SH_IC_BIC ? "BIC" : "AICc", cur_id,
                        sh_criteria_passed(&s->models[cur].battery));

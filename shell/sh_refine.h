@@ -2,11 +2,19 @@
  *
  * Nothing here prints: the commands in sh_cmd_advise.c render the results.
  *
- * Comparing models.  A model is better than another when its residuals pass
- * more of the five white-noise criteria; on equal counts when its
- * information criterion per residual (AICc/N or BIC/N) is smaller.  The
- * criterion is divided by N = n_eff because models with a larger AR lag
- * condition on more observations and sum fewer terms in the likelihood. */
+ * Comparing models.  A model is clearly better than another when its
+ * residuals pass more of the five white-noise criteria, or as many and its
+ * information criterion (AICc or BIC) is smaller by more than
+ * SH_IC_MARGIN = 2 units (a difference below 2 is commonly read as no real
+ * evidence between two models).  The criteria are compared per residual,
+ * IC/N with N = n_eff, scaled back by the smaller N: models with a larger
+ * AR lag condition on more observations and sum fewer likelihood terms.
+ * Among the proposals of one round the higher-ranked advice is kept unless
+ * a later one is clearly better or, passing as many criteria with a
+ * criterion within the margin, has fewer parameters or, as many, fewer MA
+ * terms: when the data cannot tell an AR term from an MA term, the AR form
+ * (linear in its coefficients, conditioned on observed values) is kept, as
+ * is common practice. */
 #ifndef SH_REFINE_H
 #define SH_REFINE_H
 
@@ -15,6 +23,7 @@
 
 #define SH_REFINE_MAX_STEPS 50
 #define SH_REFINE_DEFAULT_STEPS 8
+#define SH_IC_MARGIN 2.0
 
 typedef enum { SH_IC_AICC = 0, SH_IC_BIC = 1 } sh_ic;
 
@@ -79,9 +88,10 @@ typedef struct {
 /* Refine from the current model of S: each round takes the advice, fits and
  * checks every proposed model (all of them are added to the list, parent =
  * the round's model, origin = the advice), and moves to the best proposal
- * if it is better than the round's model (see above).  When the round's
- * model already passes, only a proposal that still passes and has a smaller
- * criterion is accepted.  Stops at the first of: passes with nothing
+ * if it is clearly better than the round's model (see above).  When the
+ * round's model already passes, only a proposal that still passes is
+ * accepted: with a criterion smaller by more than 2, or, having fewer
+ * parameters, smaller at all.  Stops at the first of: passes with nothing
  * accepted, no improvement, no advice, max_steps rounds, Ctrl-C.  The
  * current model is the final one.  OPT may be NULL.  Returns HN_OK (the
  * reason is in *R) or HN_EINVAL when there is no current model. */
