@@ -27,7 +27,6 @@
 #define ALPHA_ZERO 1e-4         /* alpha1 below this: beta1 not identified */
 #define SHORT_GARCH 500         /* fewer residuals than this: variance model is weakly
                                    determined (a rule of thumb, common practice) */
-#define MIN_GARCH_OBS 100       /* fewest residuals accepted at all */
 
 typedef struct {
     fit_garch_work w;
@@ -653,9 +652,7 @@ int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
     if (o.n_starts < 1)
         o.n_starts = 1;
     const int np = fit_spec_nparams(spec);
-    size_t p = (size_t)fit_spec_max_ar(spec);
-    size_t need = MIN_GARCH_OBS > 3 * (size_t)np ? MIN_GARCH_OBS : 3 * (size_t)np;
-    if (n < p || n - p < need)
+    if (n < fit_min_obs(spec))
         return HN_ESHORT;
 
     garch_ctx c;

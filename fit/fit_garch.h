@@ -9,7 +9,8 @@
  * likelihood (conventions in fit.h: sigma2_0 = e2_0 = mean of e_t^2 at the
  * current mean parameters, all N = n - max AR lag terms with their constants;
  * normal or standardised Student-t innovations).  OPT may be NULL for
- * defaults.
+ * defaults; opt->grad_tol applies to the gradient of minus the
+ * log-likelihood per residual in the unconstrained coordinates below.
  *
  * Method: positivity of omega, alpha1, beta1 > 0, alpha1 + beta1 < 1 and
  * 2 < nu < 300 hold by reparameterisation (fit_garch.c); the mean part is
@@ -34,7 +35,7 @@
  * (alpha1 < 1e-4), FIT_WARN_SHORT_GARCH (fewer than 500 residuals: a rule of
  * thumb, common practice), FIT_WARN_NU_BOUND (nu > 200 or nu < 2.05),
  * FIT_WARN_SINGULAR, and those of the mean roots.  On error *RES is zeroed:
- * HN_EINVAL, HN_ESHORT (fewer than max(100, 3 np) residuals), HN_ECONST,
+ * HN_EINVAL, HN_ESHORT (n < fit_min_obs(spec)), HN_ECONST,
  * HN_ENOMEM, HN_EINTR, HN_ENUMERIC. */
 int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
                        const fit_options *opt, fit_result *res);
