@@ -66,7 +66,7 @@ static int cmd_load(sh_session *s, sh_words *w)
         if (d.season)
             sh_printf(s, ", seasonal period %d", d.season);
         if (d.n_gaps)
-            sh_printf(s, ", %zu gap%s (first after %s)", d.n_gaps, d.n_gaps == 1 ? "" : "s", d.first_gap);
+            sh_printf(s, ", %zu gap%s (first %s)", d.n_gaps, d.n_gaps == 1 ? "" : "s", d.first_gap);
         else
             sh_printf(s, ", no gaps");
         sh_printf(s, "\n");
