@@ -4,6 +4,7 @@
 #include "sh_journal_read.h"
 #include "sh_notes.h"
 #include "hn_status.h"
+#include "fit_forecast.h"
 
 #include <fcntl.h>
 #include <stdio.h>
@@ -212,6 +213,7 @@ static void adopt(sh_session *s, sh_session *t)
     free_models(s);
     free(s->raw);
     free(s->y);
+    fit_forecast_free(s->last_forecast);
     sh_session keep = *s;
     sh_json_free(&t->j);
     if (t->journal)

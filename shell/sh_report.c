@@ -442,11 +442,11 @@ static void pdf_text(pdfpen *p, const char *text, double size, int bold, int mon
         size_t linelen = nl ? (size_t)(nl - q) : strlen(q);
         char line[1200];
         snprintf(line, sizeof line, "%.*s", (int)(linelen < sizeof line - 1 ? linelen : sizeof line - 1), q);
-        /* wrap at blanks (monospace lines are drawn as they are) */
+        /* wrap at blanks */
         char *start = line;
         while (*start || start == line) {
             char *cut = start + strlen(start);
-            if (!mono) {
+            {
                 cairo_text_extents_t ex;
                 cairo_text_extents(cr, start, &ex);
                 while (ex.x_advance > maxw) {
