@@ -5,7 +5,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-static const sh_command *const groups[] = { sh_cmds_data, sh_cmds_model, sh_cmds_forecast, sh_cmds_sim, sh_cmds_output, sh_cmds_audit, sh_cmds_advise, sh_cmds_misc };
+static const sh_command *const groups[] = { sh_cmds_data, sh_cmds_prefit, sh_cmds_model, sh_cmds_forecast, sh_cmds_sim, sh_cmds_output, sh_cmds_audit, sh_cmds_advise, sh_cmds_misc };
 
 #define MAX_COMMANDS 64
 static sh_command table[MAX_COMMANDS];

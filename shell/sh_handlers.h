@@ -7,6 +7,7 @@
 #include "sh_cmd.h"
 
 extern const sh_command sh_cmds_data[];     /* load, series, transform */
+extern const sh_command sh_cmds_prefit[];   /* stationarity */
 extern const sh_command sh_cmds_model[];    /* fit, check, models, use */
 extern const sh_command sh_cmds_forecast[]; /* forecast, holdout */
 extern const sh_command sh_cmds_sim[];      /* simulate */
