@@ -175,6 +175,33 @@ void sh_json_fit(sh_session *s, const sh_model *m)
     json_warnings(s, f);
 }
 
+/* Print TEXT from column INDENT, wrapping at the session width with the
+ * same indent; ends with a newline. */
+static void wrap(sh_session *s, const char *text, int indent)
+{
+    int width = s->width > 40 ? s->width : 80, col = indent;
+    const char *p = text;
+    while (*p) {
+        while (*p == ' ')
+            p++;
+        const char *e = p;
+        while (*e && *e != ' ')
+            e++;
+        int len = (int)(e - p);
+        if (col > indent && col + 1 + len > width) {
+            sh_printf(s, "\n%*s", indent, "");
+            col = indent;
+        } else if (col > indent) {
+            sh_printf(s, " ");
+            col++;
+        }
+        sh_printf(s, "%.*s", len, p);
+        col += len;
+        p = e;
+    }
+    sh_printf(s, "\n");
+}
+
 void sh_text_check(sh_session *s, const sh_model *m)
 {
     const diag_battery *b = &m->battery;
@@ -213,14 +240,18 @@ void sh_text_check(sh_session *s, const sh_model *m)
     sh_printf(s, "\n  notes\n");
     for (int i = 0; i < b->ntests; i++) {
         const diag_test *t = &b->tests[i];
+        char line[768];
         if (!t->detail[0] && !(t->valid && isfinite(t->effect) && t->effect_label))
             continue;
-        sh_printf(s, "    %-16s %s", t->name, t->valid ? t->detail : "");
         if (!t->valid)
-            sh_printf(s, "not computed: %s", t->detail);
-        if (t->valid && isfinite(t->effect) && t->effect_label)
-            sh_printf(s, "%ssize %.3g = %s", t->detail[0] ? "; " : "", t->effect, t->effect_label);
-        sh_printf(s, "\n");
+            snprintf(line, sizeof line, "not computed: %s", t->detail);
+        else if (isfinite(t->effect) && t->effect_label)
+            snprintf(line, sizeof line, "%s%ssize %.3g = %s", t->detail, t->detail[0] ? "; " : "", t->effect,
+                     t->effect_label);
+        else
+            snprintf(line, sizeof line, "%s", t->detail);
+        sh_printf(s, "    %-16s ", t->name);
+        wrap(s, line, 21);
     }
 
     sh_printf(s, "\n  %-25s %22s  %9s  %s\n", "criterion", "p (Bonferroni within)", "Holm step", "decision");
@@ -240,8 +271,10 @@ void sh_text_check(sh_session *s, const sh_model *m)
     }
     sh_printf(s, "\n  verdict: %s\n", b->white ? "WHITE NOISE - nothing predictable found in the residuals"
                                                : "NOT WHITE NOISE");
-    if (b->summary[0])
-        sh_printf(s, "  %s\n", b->summary);
+    if (b->summary[0]) {
+        sh_printf(s, "  ");
+        wrap(s, b->summary, 2);
+    }
 }
 
 void sh_json_check(sh_session *s, const sh_model *m)
