@@ -196,8 +196,9 @@ static int cmd_refine(sh_session *s, sh_words *w)
         return -1;
     char spec[128];
     fit_spec_format(&m->fit.spec, spec, sizeof spec);
-    sh_printf(s, "refine from model %d  %s: at most %d rounds; a proposal wins by passing more "
-              "criteria, then by a criterion (%s) smaller by more than 2\n", m->id, spec, o.max_steps, ic_name(o.by));
+    sh_printf(s, "refine from model %d  %s: at most %d round%s; a proposal wins by passing more "
+              "criteria, then by a criterion (%s) smaller by more than 2\n", m->id, spec, o.max_steps,
+              o.max_steps == 1 ? "" : "s", ic_name(o.by));
     sh_refine_result *r = malloc(sizeof *r);
     if (!r)
         return sh_fail(s, -1, "out of memory");

@@ -112,16 +112,23 @@ static int clearly_better(const sh_model *a, const sh_model *b, sh_ic ic)
     return ic_delta(a, b, ic) < -SH_IC_MARGIN;
 }
 
-/* Within one round: 1 when proposal A is preferred to the best so far B:
- * clearly better; or, passing as many with criteria within the margin,
- * fewer parameters, or as many and fewer MA terms. */
+/* Within one round: 1 when proposal A is preferred to the best so far B.
+ * More criteria passed wins.  Otherwise the criterion decides when it
+ * differs by more than the near-tie band: the margin plus one
+ * observation's share of the criterion for each observation by which the
+ * two residual counts differ (the per-residual scaling is no more exact
+ * than that).  Within the band: fewer parameters, then fewer MA terms,
+ * then the higher-ranked advice (B). */
 static int preferred(const sh_model *a, const sh_model *b, sh_ic ic)
 {
-    if (clearly_better(a, b, ic))
-        return 1;
-    if (sh_criteria_passed(&a->battery) != sh_criteria_passed(&b->battery) ||
-        fabs(ic_delta(a, b, ic)) > SH_IC_MARGIN)
-        return 0;
+    int pa = sh_criteria_passed(&a->battery), pb = sh_criteria_passed(&b->battery);
+    if (pa != pb)
+        return pa > pb;
+    double d = ic_delta(a, b, ic);
+    size_t na = a->fit.n_eff, nb = b->fit.n_eff;
+    double band = SH_IC_MARGIN + fabs(sh_ic_per_obs(&b->fit, ic)) * (double)(na > nb ? na - nb : nb - na);
+    if (fabs(d) > band)
+        return d < 0;
     if (a->fit.k_ic != b->fit.k_ic)
         return a->fit.k_ic < b->fit.k_ic;
     return a->fit.spec.n_ma < b->fit.spec.n_ma;

@@ -10,11 +10,14 @@
  * IC/N with N = n_eff, scaled back by the smaller N: models with a larger
  * AR lag condition on more observations and sum fewer likelihood terms.
  * Among the proposals of one round the higher-ranked advice is kept unless
- * a later one is clearly better or, passing as many criteria with a
- * criterion within the margin, has fewer parameters or, as many, fewer MA
- * terms: when the data cannot tell an AR term from an MA term, the AR form
- * (linear in its coefficients, conditioned on observed values) is kept, as
- * is common practice. */
+ * a later one passes more criteria, or as many with a criterion smaller by
+ * more than a near-tie band: 2 plus one residual's share of the criterion
+ * (IC/N) for each residual by which the two counts differ, since scaling
+ * per residual is no more exact than that.  Within the band the proposal
+ * with fewer parameters wins, then the one with fewer MA terms: when the
+ * data cannot tell an AR term from an MA term, the AR form (linear in its
+ * coefficients, conditioned on observed values) is kept, as is common
+ * practice. */
 #ifndef SH_REFINE_H
 #define SH_REFINE_H
 
