@@ -106,9 +106,78 @@ int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *ou
     return HN_OK;
 }
 
+/* Centred least squares of Y = SQ[q..n-1] on its Q lags and a constant:
+ * the normal equations of the mean-removed lags (Cholesky, LAPACKE_dposv)
+ * followed by one step of iterative refinement on the residuals, which
+ * brings the coefficients to the accuracy of a QR solution for the mildly
+ * conditioned designs that lags of squares give, at the cost of a few
+ * passes over the data instead of a transposed copy and an unblocked QR of
+ * it.  B (q+1): intercept, then the lag coefficients.  WORK: (q+1)(q+3)
+ * doubles.  Returns HN_OK or HN_ESINGULAR (lags collinear). */
+static int lag_regression(const double *sq, size_t n, size_t q, double *b, double *work)
+{
+    size_t rows = n - q;
+    double *mean = work, *c = mean + q + 1, *g = c + q * q;
+    /* column means, two passes with the correction term */
+    for (size_t j = 0; j <= q; j++) {
+        double m = 0.0, r = 0.0;
+        for (size_t t = q; t < n; t++)
+            m += sq[t - j];
+        m /= (double)rows;
+        for (size_t t = q; t < n; t++)
+            r += sq[t - j] - m;
+        mean[j] = m + r / (double)rows;   /* mean[0]: regressand, mean[j]: lag j */
+    }
+    for (size_t k = 0; k < q * q; k++)
+        c[k] = 0.0;
+    for (size_t j = 0; j < q; j++)
+        g[j] = 0.0;
+    for (size_t t = q; t < n; t++) {
+        double dy = sq[t] - mean[0];
+        for (size_t j = 0; j < q; j++) {
+            double dj = sq[t - j - 1] - mean[j + 1];
+            g[j] += dj * dy;
+            for (size_t k = 0; k <= j; k++)
+                c[j * q + k] += dj * (sq[t - k - 1] - mean[k + 1]);
+        }
+    }
+    for (size_t j = 0; j < q; j++)
+        for (size_t k = 0; k < j; k++)
+            c[k * q + j] = c[j * q + k];
+    lapack_int lq = (lapack_int)q;
+    if (LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', lq, c, lq) != 0)
+        return HN_ESINGULAR;
+    for (size_t j = 0; j < q; j++)
+        b[j + 1] = g[j];
+    if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, b + 1, 1) != 0)
+        return HN_ESINGULAR;
+    /* refinement: g = X'r of the centred residuals, solve, add */
+    for (size_t j = 0; j < q; j++)
+        g[j] = 0.0;
+    for (size_t t = q; t < n; t++) {
+        double r = sq[t] - mean[0];
+        for (size_t j = 0; j < q; j++)
+            r -= b[j + 1] * (sq[t - j - 1] - mean[j + 1]);
+        for (size_t j = 0; j < q; j++)
+            g[j] += (sq[t - j - 1] - mean[j + 1]) * r;
+    }
+    if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, g, 1) != 0)
+        return HN_ESINGULAR;
+    double icpt = mean[0];
+    for (size_t j = 0; j < q; j++) {
+        b[j + 1] += g[j];
+        icpt -= b[j + 1] * mean[j + 1];
+    }
+    for (size_t j = 0; j < q; j++)
+        if (!isfinite(b[j + 1]))
+            return HN_ESINGULAR;
+    b[0] = icpt;
+    return HN_OK;
+}
+
 /* Engle's ARCH-LM test.  With y_t = x_t^2, the
  * regression y_t = a_0 + a_1 y_{t-1} + ... + a_q y_{t-q} + u_t over
- * t = q..n-1 (n - q rows) is solved by least squares (LAPACKE_dgels, QR);
+ * t = q..n-1 (n - q rows) is solved by least squares (lag_regression above);
  * R^2 = 1 - SSR/SST with SST about the mean of the regressand and SSR from
  * the residuals recomputed from the coefficients.  Statistic (n-q) R^2,
  * chi-square with q degrees of freedom; OUT->effect is R^2.  Returns HN_OK;
@@ -129,12 +198,12 @@ int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
     }
     size_t rows = n - uq, cols = uq + 1;
     double *sq = malloc(n * sizeof *sq);
-    double *a = malloc(rows * cols * sizeof *a);
-    double *b = malloc(rows * sizeof *b);
-    if (!sq || !a || !b) {
+    double *b = malloc(cols * sizeof *b);
+    double *work = malloc(cols * (uq + 3) * sizeof *work);
+    if (!sq || !b || !work) {
         free(sq);
-        free(a);
         free(b);
+        free(work);
         diag_test_invalid(out, name, DIAG_VOLATILITY, "out of memory");
         return HN_ENOMEM;
     }
@@ -158,20 +227,9 @@ int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
         diag_test_invalid(out, name, DIAG_VOLATILITY, "the squared values are constant");
         goto done;
     }
-    for (size_t i = 0; i < rows; i++) {
-        size_t t = i + uq;
-        a[i * cols] = 1.0;
-        for (size_t j = 1; j <= uq; j++)
-            a[i * cols + j] = sq[t - j];
-        b[i] = sq[t];
-    }
-    lapack_int info = LAPACKE_dgels(LAPACK_ROW_MAJOR, 'N', (lapack_int)rows, (lapack_int)cols, 1,
-                                    a, (lapack_int)cols, b, 1);
-    if (info != 0) {
-        rc = info < 0 ? HN_EINVAL : HN_ESINGULAR;
-        diag_test_invalid(out, name, DIAG_VOLATILITY,
-                          info < 0 ? "least squares refused its arguments"
-                                   : "the lagged squares are collinear");
+    rc = lag_regression(sq, n, uq, b, work);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "the lagged squares are collinear");
         goto done;
     }
     double ssr = 0.0;
@@ -198,7 +256,7 @@ int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
              "x^2 on %d lags of itself and a constant, %zu rows; lag-1 coefficient %.3g", q, rows, b[1]);
 done:
     free(sq);
-    free(a);
     free(b);
+    free(work);
     return rc;
 }

@@ -228,12 +228,28 @@ static size_t largest_prime_factor(size_t n)
     return n > 1 ? n : p;
 }
 
+/* Smallest L >= m whose prime factors are all 2, 3, 5 or 7. */
+static size_t smooth_length(size_t m)
+{
+    for (size_t L = m;; L++) {
+        size_t r = L;
+        static const size_t f[] = { 2, 3, 5, 7 };
+        for (int i = 0; i < 4; i++)
+            while (r % f[i] == 0)
+                r /= f[i];
+        if (r == 1)
+            return L;
+    }
+}
+
 /* |X_j|^2 for j = 1..q of the DFT X_j = sum_t d_t exp(-2 pi i j t / n),
  * into I[0..q-1].  D is overwritten.  Lengths whose prime factors are all
  * small go through GSL's mixed-radix real FFT; others (GSL's general-factor
  * code is O(n p) for a prime factor p) through Bluestein's chirp-z identity
  * jt = (j^2 + t^2 - (j-t)^2)/2 as a circular convolution of length
- * L = 2^k >= 2n - 1 done with GSL's radix-2 complex FFT; the outer chirp has
+ * L >= 2n - 1, the smallest with prime factors 2, 3, 5 and 7 only (GSL's
+ * mixed-radix complex FFT has fast passes for those; L is then at most a few
+ * per cent above 2n - 1, where a power of two can be nearly twice); the outer chirp has
  * modulus 1 and drops out of |X_j|^2.  Returns HN_OK, HN_ENOMEM or
  * HN_ENUMERIC. */
 static int periodogram(double *d, size_t n, size_t q, double *I)
@@ -255,13 +271,17 @@ static int periodogram(double *d, size_t n, size_t q, double *I)
             gsl_fft_real_workspace_free(ws);
         return rc;
     }
-    size_t L = 1;
-    while (L < 2 * n - 1)
-        L <<= 1;
+    size_t L = smooth_length(2 * n - 1);
     double *a = calloc(2 * L, sizeof *a), *b = calloc(2 * L, sizeof *b);
-    if (!a || !b) {
+    gsl_fft_complex_wavetable *wt = gsl_fft_complex_wavetable_alloc(L);
+    gsl_fft_complex_workspace *ws = gsl_fft_complex_workspace_alloc(L);
+    if (!a || !b || !wt || !ws) {
         free(a);
         free(b);
+        if (wt)
+            gsl_fft_complex_wavetable_free(wt);
+        if (ws)
+            gsl_fft_complex_workspace_free(ws);
         return HN_ENOMEM;
     }
     unsigned long long two_n = 2ULL * (unsigned long long)n;
@@ -280,7 +300,7 @@ static int periodogram(double *d, size_t n, size_t q, double *I)
         }
     }
     int rc = HN_OK;
-    if (gsl_fft_complex_radix2_forward(a, 1, L) != 0 || gsl_fft_complex_radix2_forward(b, 1, L) != 0)
+    if (gsl_fft_complex_forward(a, 1, L, wt, ws) != 0 || gsl_fft_complex_forward(b, 1, L, wt, ws) != 0)
         rc = HN_ENUMERIC;
     if (rc == HN_OK) {
         for (size_t k = 0; k < L; k++) {
@@ -289,12 +309,14 @@ static int periodogram(double *d, size_t n, size_t q, double *I)
             a[2 * k] = re;
             a[2 * k + 1] = im;
         }
-        if (gsl_fft_complex_radix2_inverse(a, 1, L) != 0)
+        if (gsl_fft_complex_inverse(a, 1, L, wt, ws) != 0)
             rc = HN_ENUMERIC;
     }
     if (rc == HN_OK)
         for (size_t j = 1; j <= q; j++)
             I[j - 1] = a[2 * j] * a[2 * j] + a[2 * j + 1] * a[2 * j + 1];
+    gsl_fft_complex_wavetable_free(wt);
+    gsl_fft_complex_workspace_free(ws);
     free(a);
     free(b);
     return rc;

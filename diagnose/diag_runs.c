@@ -9,10 +9,48 @@
 #include "diag_checks.h"
 #include "hn_status.h"
 
-static int cmp_double(const void *a, const void *b)
+/* The K-th smallest (0-based) of A[0..n-1], by Wirth's selection with a
+ * median-of-three pivot; A is reordered so that A[i] <= A[K] <= A[j] for
+ * i < K < j.  The value is that of a full sort, found in O(n) on average. */
+static double select_kth(double *a, size_t n, size_t k)
 {
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
+    long l = 0, m = (long)n - 1, kk = (long)k;
+    while (l < m) {
+        double u = a[l], v = a[l + (m - l) / 2], w = a[m];
+        double x = u < v ? (v < w ? v : (u < w ? w : u)) : (u < w ? u : (v < w ? w : v));
+        long i = l, j = m;
+        do {
+            while (a[i] < x)
+                i++;
+            while (x < a[j])
+                j--;
+            if (i <= j) {
+                double t = a[i];
+                a[i] = a[j];
+                a[j] = t;
+                i++;
+                j--;
+            }
+        } while (i <= j);
+        if (j < kk)
+            l = i;
+        if (kk < i)
+            m = j;
+    }
+    return a[kk];
+}
+
+/* Median of A[0..n-1] (n > 0); A is reordered. */
+static double median_select(double *a, size_t n)
+{
+    size_t h = n / 2;
+    if (n % 2)
+        return select_kth(a, n, h);
+    double lo = select_kth(a, n, h - 1), hi = a[h];
+    for (size_t i = h + 1; i < n; i++)
+        if (a[i] < hi)
+            hi = a[i];
+    return 0.5 * (lo + hi);
 }
 
 static void fill(diag_test *t, const char *name, double stat, double p, double alpha,
@@ -65,8 +103,7 @@ int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out)
         }
     }
     memcpy(s, x, n * sizeof *x);
-    qsort(s, n, sizeof *s, cmp_double);
-    double med = n % 2 ? s[n / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+    double med = median_select(s, n);
     free(s);
 
     size_t n1 = 0, n2 = 0, runs = 0;

@@ -15,18 +15,55 @@
  * keep the digits of their differences.  Each two-pass mean adds the mean of
  * the first-pass deviations as a correction. */
 
-static int cmp_double(const void *a, const void *b)
+/* The K-th smallest (0-based) of A[0..n-1], by Wirth's selection with a
+ * median-of-three pivot; A is reordered so that A[i] <= A[K] <= A[j] for
+ * i < K < j.  The value is that of a full sort, found in O(n) on average. */
+static double select_kth(double *a, size_t n, size_t k)
 {
-    double x = *(const double *)a, y = *(const double *)b;
-    return (x > y) - (x < y);
+    long l = 0, m = (long)n - 1, kk = (long)k;
+    while (l < m) {
+        double u = a[l], v = a[l + (m - l) / 2], w = a[m];
+        double x = u < v ? (v < w ? v : (u < w ? w : u)) : (u < w ? u : (v < w ? w : v));
+        long i = l, j = m;
+        do {
+            while (a[i] < x)
+                i++;
+            while (x < a[j])
+                j--;
+            if (i <= j) {
+                double t = a[i];
+                a[i] = a[j];
+                a[j] = t;
+                i++;
+                j--;
+            }
+        } while (i <= j);
+        if (j < kk)
+            l = i;
+        if (kk < i)
+            m = j;
+    }
+    return a[kk];
+}
+
+/* Median of A[0..n-1] (n > 0); A is reordered. */
+static double median_select(double *a, size_t n)
+{
+    size_t h = n / 2;
+    if (n % 2)
+        return select_kth(a, n, h);
+    double lo = select_kth(a, n, h - 1), hi = a[h];
+    for (size_t i = h + 1; i < n; i++)
+        if (a[i] < hi)
+            hi = a[i];
+    return 0.5 * (lo + hi);
 }
 
 /* Median of X[0..n-1] using SCRATCH (n doubles) for the sorted copy. */
 static double median_of(const double *x, size_t n, double *scratch)
 {
     memcpy(scratch, x, n * sizeof *x);
-    qsort(scratch, n, sizeof *scratch, cmp_double);
-    return n % 2 ? scratch[n / 2] : 0.5 * (scratch[n / 2 - 1] + scratch[n / 2]);
+    return median_select(scratch, n);
 }
 
 /* Two-pass mean of X[0..n-1] (n > 0). */
