@@ -46,10 +46,14 @@ void sh_text_fit(sh_session *s, const sh_model *m)
     sh_printf(s, "  data   %s\n", m->series);
     sh_printf(s, "  sample n = %zu, N = %zu in the likelihood after %zu conditioning value%s\n", f->n,
               f->n_eff, f->start, f->start == 1 ? "" : "s");
-    if (f->spec.mean)
-        sh_printf(s, "  form   y_t - mu = sum ar_i (y_{t-i} - mu) + e_t + sum ma_j e_{t-j}\n");
-    else
-        sh_printf(s, "  form   y_t = sum ar_i y_{t-i} + e_t + sum ma_j e_{t-j}   (mean fixed at 0)\n");
+    {
+        int has_arma = f->spec.n_ar || f->spec.n_ma;
+        const char *lhs = f->spec.mean ? (has_arma ? "y_t - mu" : "y_t") : "y_t";
+        sh_printf(s, "  form   %s = %s%s%s%s%s\n", lhs,
+                  f->spec.mean && !has_arma ? "mu + " : "",
+                  f->spec.n_ar ? (f->spec.mean ? "sum ar_i (y_{t-i} - mu) + " : "sum ar_i y_{t-i} + ") : "",
+                  "e_t", f->spec.n_ma ? " + sum ma_j e_{t-j}" : "", f->spec.mean ? "" : "   (mean fixed at 0)");
+    }
     if (f->spec.garch)
         sh_printf(s, "         sigma2_t = omega + alpha1 e2_{t-1} + beta1 sigma2_{t-1}, sigma2_0 = e2_0 = mean e2\n");
     sh_printf(s, "\n  %-10s %14s %12s %9s%s\n", "parameter", "estimate", robust ? "robust se" : "std error",
@@ -71,9 +75,12 @@ void sh_text_fit(sh_session *s, const sh_model *m)
     sh_printf(s, "  criteria use k = %d parameters and N = %zu; the log-likelihood includes the 2 pi constant\n",
               f->k_ic, f->n_eff);
     if (f->spec.garch) {
-        sh_printf(s, "  persistence alpha1 + beta1 = %s, unconditional variance %s, half-life of a shock %s\n",
-                  sh_num(a, sizeof a, f->persistence, 5), sh_num(b, sizeof b, f->sigma2, 5),
-                  isfinite(f->half_life) ? (snprintf(c, sizeof c, "%.3g steps", f->half_life), c) : "infinite");
+        if (f->persistence < 0.999)
+            sh_printf(s, "  persistence alpha1 + beta1 = %s, unconditional variance %s, half-life of a shock %.3g steps\n",
+                      sh_num(a, sizeof a, f->persistence, 5), sh_num(b, sizeof b, f->sigma2, 5), f->half_life);
+        else
+            sh_printf(s, "  persistence alpha1 + beta1 = %s: at the integrated boundary, so the unconditional variance\n"
+                      "  and the half-life of a shock are not defined\n", sh_num(a, sizeof a, f->persistence, 6));
         sh_printf(s, "  robust se: Bollerslev-Wooldridge sandwich; hessian se: inverse Hessian\n");
     }
     if (f->n_ar_roots) {
@@ -153,9 +160,11 @@ void sh_json_fit(sh_session *s, const sh_model *m)
                             "sandwich not computable");
         sh_json_end_object(j);
         sh_json_knumber(j, "persistence", f->persistence, NULL);
-        sh_json_knumber(j, "half_life", f->half_life, "persistence at or above 1");
+        sh_json_knumber(j, "half_life", f->persistence < 0.999 ? f->half_life : NAN,
+                        "persistence at the integrated boundary");
     }
-    sh_json_knumber(j, "sigma2", f->sigma2, "not finite (integrated variance)");
+    sh_json_knumber(j, "sigma2", f->spec.garch && !(f->persistence < 0.999) ? NAN : f->sigma2,
+                    "unconditional variance not defined at the integrated boundary");
     sh_json_knumber(j, "loglik", f->loglik, NULL);
     sh_json_knumber(j, "aic", f->aic, NULL);
     sh_json_knumber(j, "aicc", f->aicc, "N - k - 1 <= 0");
