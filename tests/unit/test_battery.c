@@ -186,6 +186,7 @@ static void test_rules(void **state)
     assert_string_equal(b.lag_rule, "min(10, n/5)");
     assert_int_equal(b.acf_lags, 20);
     assert_int_equal(b.window, 30);
+    /* z_{0.975} = 1.959963984540054 (scipy 1.10.1, norm.ppf(0.975)) */
     TU_NEAR(b.band, 1.959963984540054 / sqrt(300.0), 1e-12);
     int lb = find_test(&b, "ljung-box");
     assert_true(lb >= 0);
@@ -229,7 +230,8 @@ static void test_rules(void **state)
                 assert_true(b.crit_p[c] < b.alpha / (k - step + 1));
         }
     assert_int_equal(b.holm_rank[DIAG_NORMAL], 0);
-    /* The serial effect: a long AR on an AR(1) 0.5 predicts about 0.25 of the variance. */
+    /* The serial effect: a long AR on an AR(1) 0.5 predicts about 0.25 of the variance
+     * (phi^2, the share an AR(1) predictor removes: common practice). */
     TU_NEAR(b.tests[lb].effect, 0.25, 0.1);
     diag_battery_free(&b);
 

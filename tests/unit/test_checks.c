@@ -1,11 +1,13 @@
 /* test_checks.c - variance, volatility, randomness and normality checks against published values.
  *
  * Sources (see ../shared/reference/tables/SOURCE.md for where each was read):
- *   NIST Dataplot Reference Manual LEVENE TEST (VANGEL32), e-Handbook 1.3.5.10
- *   (GEAR), e-Handbook 1.3.5.13 / case study 1.4.2.5 (LEW runs test, Levene
- *   over 4 blocks), NIST StRD ANOVA certified values, Dataplot JARQUE BERA
- *   TEST and e-Handbook 1.4.2.8.3 (ZARR13), Dataplot F percent points; and
- *   Debian's scipy 1.10.1 / numpy 1.24.2 (tests/ref/checks_ref.csv). */
+ *   NIST reference-manual page LEVENE TEST (VANGEL32; tables/SOURCE.md E1),
+ *   e-Handbook 1.3.5.10 (GEAR; E2), e-Handbook 1.3.5.13 / case study 1.4.2.5
+ *   (LEW runs test, Levene over 4 blocks; E4, E5), NIST StRD ANOVA certified
+ *   values (E8), NIST reference-manual page JARQUE BERA TEST and e-Handbook
+ *   1.4.2.8.3 (ZARR13; E6, E7), the F percent points printed on the LEVENE
+ *   TEST page (tables/f_percent_points.csv); and Debian's scipy 1.10.1 /
+ *   numpy 1.24.2 (tests/ref/checks_ref.csv). */
 #include "testutil.h"
 
 #include <gsl/gsl_cdf.h>
@@ -107,7 +109,7 @@ static void test_levene_vangel32(void **state)
     assert_int_equal(n, 45);
     assert_int_equal(ng, 3);
     assert_int_equal(diag_levene_groups(x, sizes, ng, 1, &W, &d1, &d2, &p), HN_OK);
-    /* NIST Dataplot Reference Manual, LEVENE TEST (confirmed): W = 10.88618,
+    /* NIST reference-manual page LEVENE TEST (tables/SOURCE.md E1, confirmed): W = 10.88618,
      * F(2, 42), CDF 0.99984, p 0.00016 (printed digits) */
     TU_NEAR(W, 10.88618, 1e-6);
     assert_true(d1 == 2.0 && d2 == 42.0);
@@ -126,7 +128,7 @@ static void test_levene_gear(void **state)
     assert_int_equal(n, 100);
     assert_int_equal(ng, 10);
     assert_int_equal(diag_levene_groups(x, sizes, ng, 1, &W, &d1, &d2, &p), HN_OK);
-    /* NIST/SEMATECH e-Handbook 1.3.5.10 (secondary quotation, single-precision
+    /* NIST/SEMATECH e-Handbook 1.3.5.10 (tables/SOURCE.md E2: secondary quotation, single-precision
      * printout): W = 1.705910, df (9, 90), p 0.0991 */
     TU_NEAR(W, 1.705910, 1e-5);
     assert_true(d1 == 9.0 && d2 == 90.0);
@@ -310,13 +312,14 @@ static void test_anova_strd_shifted(void **state)
 
 /* ---------- Jarque-Bera: ZARR13 ---------- */
 
-/* Dataplot's moments are sum (x-xbar)^k / ((N-1) s^k), s with divisor N-1;
+/* The NIST printout's moments are sum (x-xbar)^k / ((N-1) s^k), s with divisor N-1;
  * ours are the divisor-N moments of Jarque and Bera.  Converting ours:
  * S_dp = S ((N-1)/N)^(1/2), K_dp = K (N-1)/N.  Published (confirmed):
  * e-Handbook 1.4.2.8.3 standardized 3rd moment -0.8537455E-02, 4th moment
  * 0.3049067E+01 (printed from single-precision arithmetic: they agree with
  * the double-precision values -0.0085364, 3.0490604 only to about 1e-6
- * absolute, hence the tolerances); Dataplot JARQUE BERA TEST JB = 0.0219. */
+ * absolute, hence the tolerances); NIST reference-manual page JARQUE BERA
+ * TEST JB = 0.0219 (tables/SOURCE.md E6, E7; _dp marks that convention). */
 static void test_jarque_bera_zarr13(void **state)
 {
     (void)state;
@@ -334,7 +337,8 @@ static void test_jarque_bera_zarr13(void **state)
     assert_true(fabs(k_dp - 0.3049067E+01) <= 1e-5);
     double jb_dp = N / 6.0 * (s_dp * s_dp + 0.25 * (k_dp - 3.0) * (k_dp - 3.0));
     assert_true(fabs(jb_dp - 0.0219) <= 0.5e-4);
-    /* our own (divisor N) statistic: 0.036474 recomputed only, no published value */
+    /* our own (divisor N) statistic: 0.036474 as recomputed in tables/SOURCE.md E6;
+     * no published value exists for it */
     assert_true(fabs(t.statistic - 0.036474) <= 0.5e-6);
     assert_true(t.df == 2.0);
     TU_NEAR(t.p, exp(-t.statistic / 2.0), 1e-14);   /* chi-square(2) upper tail */
@@ -360,7 +364,7 @@ static void test_f_percent_points(void **state)
         if (sscanf(line, "%lf,%lf,%lf,%lf,%63[^,]", &d1, &d2, &cdf, &val, status) != 5)
             continue;
         double got = gsl_cdf_fdist_Pinv(cdf, d1, d2);
-        /* confirmed rows (NIST Dataplot, 7 significant digits) to 3e-6 relative:
+        /* confirmed rows (NIST LEVENE TEST page, 7 significant digits) to 3e-6 relative:
          * the printed 99.9 % point 8.179383 differs from GSL 2.7.1 and scipy
          * 1.10.1 (both 8.1794054) by 2.7e-6 relative, the others by less than
          * 1e-6; the memory-only row loosely */
