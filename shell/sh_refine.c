@@ -266,11 +266,11 @@ int sh_refine(sh_session *s, const sh_refine_options *opt, sh_refine_result *r)
         snprintf(st->evidence, sizeof st->evidence, "%s", adv.item[best_item].reason);
     }
     if (s->models[cur].battery.white)
-        finish(s, r, cur, SH_STOP_BUDGET, "the budget of %d rounds is used; the residuals of model %d "
-               "pass every white-noise criterion", budget, s->models[cur].id);
+        finish(s, r, cur, SH_STOP_BUDGET, "the budget of %d round%s is used; the residuals of model %d "
+               "pass every white-noise criterion", budget, budget == 1 ? "" : "s", s->models[cur].id);
     else
-        finish(s, r, cur, SH_STOP_BUDGET, "the budget of %d rounds is used; model %d passes %d of 5 "
-               "criteria (raise max=)", budget, s->models[cur].id,
+        finish(s, r, cur, SH_STOP_BUDGET, "the budget of %d round%s is used; model %d passes %d of 5 "
+               "criteria (raise max=)", budget, budget == 1 ? "" : "s", s->models[cur].id,
                sh_criteria_passed(&s->models[cur].battery));
     return HN_OK;
 }

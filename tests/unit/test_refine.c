@@ -167,6 +167,28 @@ static void test_refine_budget(void **state)
     sh_session_free(&s);
 }
 
+/* Ctrl-C before the first round: refine stops at once, keeps the start
+ * model, and says so. */
+static void test_refine_interrupted(void **state)
+{
+    (void)state;
+    fit_spec truth = spec_of("ar(2)");
+    const double par[] = { 10.0, 0.5, 0.3, 1.0 };
+    double y[500];
+    assert_int_equal(fit_simulate(&truth, par, 500, 500, 1000, y), HN_OK);
+    sh_session s;
+    session_with(&s, y, 500, 0);
+    sh_refine_result r;
+    sh_interrupted = 1;
+    assert_int_equal(sh_refine(&s, NULL, &r), HN_OK);
+    sh_interrupted = 0;
+    assert_int_equal(r.stop, SH_STOP_INTERRUPTED);
+    assert_int_equal(r.nsteps, 0);
+    assert_int_equal(s.nmodels, 1);
+    assert_int_equal(r.final_id, 1);
+    sh_session_free(&s);
+}
+
 /* Compare two fits bit for bit (what is printed follows from these). */
 static void same_fit(const fit_result *a, const fit_result *b)
 {
@@ -279,6 +301,7 @@ int main(void)
         cmocka_unit_test(test_refine_ar2),        cmocka_unit_test(test_refine_ma1),
         cmocka_unit_test(test_refine_ar1_lag7),   cmocka_unit_test(test_refine_garch_t),
         cmocka_unit_test(test_refine_white),      cmocka_unit_test(test_refine_budget),
+        cmocka_unit_test(test_refine_interrupted),
         cmocka_unit_test(test_scan_threads_arma), cmocka_unit_test(test_scan_threads_garch),
         cmocka_unit_test(test_scan_options),
     };
