@@ -679,7 +679,8 @@ static double decrement(int nm, const double *L, const double *g, double *tmp)
  *   2. BFGS2 (fit_optim_minimise) from there in coordinates preconditioned by
  *      the Cholesky factor of M, where its gradient tolerance is the same
  *      decrement; after successful Gauss-Newton steps it confirms
- *      convergence at its first evaluation.
+ *      convergence at its first evaluation.  Up to four rounds, each
+ *      preconditioned afresh where the previous one stopped.
  * REP counts Gauss-Newton steps as iterations and their passes as
  * evaluations, on top of BFGS2's own. */
 static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_report *rep)
@@ -724,31 +725,55 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
         steps++;
         have_L = cholesky(nm, M, L) == 0;
     }
-    if (!have_L) {
-        memset(L, 0, nn * sizeof *L);
-        for (int i = 0; i < nm; i++)
-            L[i * nm + i] = 1.0;
-    }
-    memcpy(x0, x, (size_t)nm * sizeof *x0);
-    double gnorm = decrement(nm, L, g, u);
-    memset(u, 0, (size_t)nm * sizeof *u);
-    pre_ctx p = { c, nm, x0, L, xt, gt };
+    /* BFGS2 in rounds: each round is preconditioned at its own start (the
+     * Gauss-Newton matrix there, else the identity), so that a poor metric
+     * from a distant start does not persist; a round ends at the tolerance,
+     * at a stall, or after a quarter of the iteration budget. */
     fit_optim_options oo = fit_optim_default_options();
-    oo.max_iter = o->max_iter;
     oo.grad_tol = o->grad_tol;
     oo.interrupt = o->interrupt;
     oo.line_tol = 0.9;      /* the usual curvature constant for quasi-Newton */
-    /* the first trial step: the Gauss-Newton step's length in u */
-    oo.step = gnorm < 1e-6 ? 1e-6 : gnorm > 1.0 ? 1.0 : gnorm;
-    rc = fit_optim_minimise(nm, u, pre_objective, &p, &oo, rep);
-    if (rep) {
-        rep->iterations += steps;
-        rep->evaluations += passes;
+    int budget = o->max_iter > 0 ? o->max_iter : 1, used = 0, evals = 0;
+    fit_optim_report r1;
+    memset(&r1, 0, sizeof r1);
+    rc = HN_ENOCONV;
+    for (int round = 0; round < 4 && used < budget; round++) {
+        if (round > 0) {
+            if (css_gn(c, x, &f, g, M) != HN_OK)
+                break;
+            passes++;
+            have_L = cholesky(nm, M, L) == 0;
+        }
+        if (!have_L) {
+            memset(L, 0, nn * sizeof *L);
+            for (int i = 0; i < nm; i++)
+                L[i * nm + i] = 1.0;
+        }
+        memcpy(x0, x, (size_t)nm * sizeof *x0);
+        double gnorm = decrement(nm, L, g, u);
+        memset(u, 0, (size_t)nm * sizeof *u);
+        pre_ctx p = { c, nm, x0, L, xt, gt };
+        int left = budget - used;
+        oo.max_iter = round < 3 && left > budget / 4 ? (budget + 3) / 4 : left;
+        /* the first trial step: the Gauss-Newton step's length in u */
+        oo.step = gnorm < 1e-6 ? 1e-6 : gnorm > 1.0 ? 1.0 : gnorm;
+        double f_before = f;
+        rc = fit_optim_minimise(nm, u, pre_objective, &p, &oo, &r1);
+        used += r1.iterations;
+        evals += r1.evaluations;
+        if (rc == HN_OK || rc == HN_ENOCONV || rc == HN_EINTR) {
+            pre_to_x(&p, u, x);
+            for (int i = 0; i < nm; i++)
+                x[i] += x0[i];
+            f = r1.f;
+        }
+        if (rc != HN_ENOCONV || !(f < f_before - 1e-15 * (1.0 + fabs(f_before))))
+            break;
     }
-    if (rc == HN_OK || rc == HN_ENOCONV || rc == HN_EINTR) {
-        pre_to_x(&p, u, x);
-        for (int i = 0; i < nm; i++)
-            x[i] += x0[i];
+    if (rep) {
+        *rep = r1;
+        rep->iterations = used + steps;
+        rep->evaluations = evals + passes;
     }
     free(buf);
     return rc;
@@ -788,7 +813,9 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
             }
         scale = mx * sqrt(ss / (double)n);
     }
-    if (!(scale > 0.0) || !isfinite(scale))
+    if (!isfinite(scale) || !isfinite(loc))
+        return HN_ENUMERIC;
+    if (!(scale > 0.0))
         return HN_ECONST;
 
     int rc = fit_result_init(res, spec, n, p, 0);

@@ -311,34 +311,54 @@ int fit_spd_inverse(int np, const double *A, double *inv)
 {
     if (np <= 0 || !A || !inv || A == inv)
         return HN_EINVAL;
-    for (int i = 0; i < np * np; i++) {
-        if (!isfinite(A[i]))
-            return HN_ESINGULAR;
-        inv[i] = A[i];
+    /* Equilibrate first, C = D^-1/2 A D^-1/2 with D = diag(A), so that the
+     * singularity test does not depend on the parameters' units; then
+     * A^-1 = D^-1/2 C^-1 D^-1/2. */
+    size_t n2 = (size_t)np * (size_t)np;
+    double *dsc = malloc((size_t)np * sizeof *dsc);
+    if (!dsc)
+        return HN_ENOMEM;
+    int rc = HN_OK;
+    for (int i = 0; i < np && rc == HN_OK; i++) {
+        double a = A[i * np + i];
+        if (!(a > 0.0) || !isfinite(a))
+            rc = HN_ESINGULAR;
+        else
+            dsc[i] = 1.0 / sqrt(a);
     }
+    for (size_t k = 0; k < n2 && rc == HN_OK; k++)
+        if (!isfinite(A[k]))
+            rc = HN_ESINGULAR;
+    if (rc != HN_OK) {
+        free(dsc);
+        return rc;
+    }
+    for (int i = 0; i < np; i++)
+        for (int j = 0; j < np; j++)
+            inv[i * np + j] = A[i * np + j] * dsc[i] * dsc[j];
     lapack_int n = np;
     lapack_int info = LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', n, inv, n);
     if (info < 0)
-        return HN_EINVAL;
-    if (info > 0)
-        return HN_ESINGULAR;
-    /* Reject a numerically singular factor: a tiny pivot relative to the
-     * largest one means the inverse is mostly rounding error. */
-    double dmax = 0.0, dmin = INFINITY;
-    for (int i = 0; i < np; i++) {
-        double dii = fabs(inv[i * np + i]);
-        if (dii > dmax) dmax = dii;
-        if (dii < dmin) dmin = dii;
+        rc = HN_EINVAL;
+    else if (info > 0)
+        rc = HN_ESINGULAR;
+    else {
+        /* a tiny pivot of the equilibrated matrix (condition number beyond
+         * about 1e14) means the inverse is mostly rounding error */
+        for (int i = 0; i < np; i++)
+            if (!(fabs(inv[i * np + i]) > 1e-7))
+                rc = HN_ESINGULAR;
     }
-    if (!(dmin > dmax * 1e-7))
-        return HN_ESINGULAR;
-    info = LAPACKE_dpotri(LAPACK_ROW_MAJOR, 'L', n, inv, n);
-    if (info < 0)
-        return HN_EINVAL;
-    if (info > 0)
-        return HN_ESINGULAR;
-    for (int i = 0; i < np; i++)
-        for (int j = i + 1; j < np; j++)
-            inv[i * np + j] = inv[j * np + i];
-    return HN_OK;
+    if (rc == HN_OK) {
+        info = LAPACKE_dpotri(LAPACK_ROW_MAJOR, 'L', n, inv, n);
+        rc = info < 0 ? HN_EINVAL : info > 0 ? HN_ESINGULAR : HN_OK;
+    }
+    if (rc == HN_OK)
+        for (int i = 0; i < np; i++)
+            for (int j = 0; j <= i; j++) {
+                double v = inv[i * np + j] * dsc[i] * dsc[j];
+                inv[i * np + j] = inv[j * np + i] = v;
+            }
+    free(dsc);
+    return rc;
 }

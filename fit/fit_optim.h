@@ -39,8 +39,10 @@ int fit_optim_minimise(int np, double *x, fit_objective fn, void *ctx,
  * analytic gradient at X.  HN_OK or the objective's error. */
 int fit_hessian_fd(int np, const double *x, fit_objective fn, void *ctx, double *H);
 
-/* Inverse of a symmetric positive-definite matrix (LAPACKE Cholesky).
- * HN_OK or HN_ESINGULAR.  A and INV may not alias. */
+/* Inverse of a symmetric positive-definite matrix (LAPACKE Cholesky, after
+ * equilibrating by the diagonal so that the test for singularity does not
+ * depend on units).  HN_OK, HN_ESINGULAR (not positive definite, or
+ * condition number beyond about 1e14), HN_ENOMEM.  A and INV may not alias. */
 int fit_spd_inverse(int np, const double *A, double *inv);
 
 #endif

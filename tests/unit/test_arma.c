@@ -230,6 +230,45 @@ static void test_series_f_ma(void **state)
     free(y);
 }
 
+/* Conditional LS is equivariant under y -> a + b y (exact algebra): the
+ * same AR/MA estimates and standard errors, mu -> a + b mu with its
+ * standard error times |b|, sigma2 times b^2, loglik minus N log|b|.
+ * Series F is used at b = 1e-8 and b = 1e8. */
+static void test_units(void **state)
+{
+    (void)state;
+    TU_NEED_REF(ref);
+    char path[4096];
+    snprintf(path, sizeof path, "%s/box-jenkins-series-f/series_f.csv", ref);
+    double *y = NULL;
+    size_t n = tu_read_column(path, 1, &y);
+    assert_int_equal(n, 70);
+    fit_spec s = spec_of("arma(1,1)");
+    fit_result r0, r;
+    assert_int_equal(fit_model(y, n, &s, NULL, &r0), HN_OK);
+    const double b[] = { 1e-8, 1e8 }, a = 3.0;
+    double *z = malloc(n * sizeof *z);
+    for (int m = 0; m < 2; m++) {
+        for (size_t t = 0; t < n; t++)
+            z[t] = a + b[m] * y[t];
+        assert_int_equal(fit_model(z, n, &s, NULL, &r), HN_OK);
+        assert_true(r.converged);
+        assert_int_equal(r.warnings, r0.warnings);
+        TU_NEAR(r.par[0], a + b[m] * r0.par[0], 1e-7 * b[m] * fabs(r0.par[0]));
+        TU_NEAR(r.se[0], b[m] * r0.se[0], 1e-5 * b[m] * r0.se[0]);
+        for (int k = 1; k < 3; k++) {
+            TU_NEAR(r.par[k], r0.par[k], 1e-7);
+            TU_NEAR(r.se[k], r0.se[k], 1e-5 * r0.se[k]);
+        }
+        TU_NEAR(r.sigma2 / (b[m] * b[m]), r0.sigma2, 1e-9 * r0.sigma2);
+        TU_NEAR(r.loglik, r0.loglik - 69.0 * log(b[m]), 1e-8 * fabs(r0.loglik));
+        fit_result_free(&r);
+    }
+    free(z);
+    fit_result_free(&r0);
+    free(y);
+}
+
 /* (3) A simulated ARMA(2,1) at n = 100000 (invented data, seed 20240601):
  * every estimate within 3 standard errors of the value simulated. */
 static void test_recovery(void **state)
@@ -432,6 +471,7 @@ int main(void)
         cmocka_unit_test(test_hessian),
         cmocka_unit_test(test_series_f),
         cmocka_unit_test(test_series_f_ma),
+        cmocka_unit_test(test_units),
         cmocka_unit_test(test_recovery),
         cmocka_unit_test(test_roots),
         cmocka_unit_test(test_errors),
