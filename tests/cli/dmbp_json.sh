@@ -1,7 +1,8 @@
 #!/bin/sh
 # The GARCH(1,1) benchmark through the JSON interface: Bollerslev & Ghysels
 # (1996) DM/BP returns, constant mean + GARCH(1,1) normal; published values
-# from the FCP double-precision run as listed in the benchmark file quoted in
+# are the double-precision estimates of Fiorentini, Calzolari & Panattoni
+# (1996) as listed in the benchmark file quoted in
 # reference/bollerslev-ghysels-dmbp/SOURCE.md (benchmark_values.csv).
 ref="${HONE_REFERENCE_DIR:-../shared/reference}"
 csv="$ref/bollerslev-ghysels-dmbp/dmbp_returns.csv"

@@ -40,8 +40,9 @@ static void test_dmbp_benchmark(void **state)
     assert_int_equal(r.n_eff, 1974);
     assert_true(r.converged);
 
-    /* Source: benchmark_values.csv, FCP (VSGARCOV) column of the benchmark
-     * file 'bgfcp' (Cummins 1998) -- Fiorentini, Calzolari & Panattoni (1996). */
+    /* Source: reference/bollerslev-ghysels-dmbp/benchmark_values.csv, the
+     * double-precision estimates of Fiorentini, Calzolari & Panattoni (1996)
+     * as listed in the benchmark file 'bgfcp' (Cummins 1998). */
     const double want[4] = { -0.006190408379994, 0.0107613978518, 0.153134061820,
                              0.805973670305 };
     const double want_rob[4] = { 0.009189353979760952, 0.006493186182105218,
@@ -66,7 +67,7 @@ static void test_dmbp_benchmark(void **state)
     for (int i = 0; i < 4; i++)
         TU_NEAR(r.se[i] / want_hess[i], 1.0, 1e-2);
 
-    /* Unconditional variance omega/(1-alpha-beta) at the FCP values above; and
+    /* Unconditional variance omega/(1-alpha-beta) at the published values above; and
      * Bollerslev & Ghysels (1996) Table 2 col. 4 (secondary quotation in the
      * same file) print .264 from their own estimates rounded to 3 digits. */
     TU_NEAR(r.sigma2, want[1] / (1.0 - want[2] - want[3]), 1e-8);
