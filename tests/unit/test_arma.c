@@ -198,7 +198,8 @@ static void test_series_f(void **state)
 /* Series F with MA terms: the conditional-LS optimum of fit.h's conventions,
  * computed independently in Python with scipy 1.10.1 (Debian; numpy 1.24.2)
  * by minimising the same sum of squares with scipy.optimize.minimize
- * (Nelder-Mead to xatol 1e-13 after BFGS); scipy's result is good to about
+ * (Nelder-Mead to xatol 1e-13 after BFGS; tests/ref/gen_fit_ref.py, output in
+ * tests/ref/fit_ref.txt); scipy's result is good to about
  * 1e-7, hence the tolerance. */
 static void test_series_f_ma(void **state)
 {

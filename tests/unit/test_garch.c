@@ -109,7 +109,8 @@ static void test_dmbp_loglik_at_published_point(void **state)
 /* Log-likelihoods at fixed parameters on the DM/BP returns against an
  * independent evaluation with scipy 1.10.1 / numpy 1.24.2 (stats.t.logpdf of
  * the rescaled standardised residual plus the Jacobian terms; stats.norm.logpdf
- * with scale sqrt(h_t)), same start-up rule, residual recursion written apart. */
+ * with scale sqrt(h_t)), same start-up rule, residual recursion written apart
+ * (tests/ref/gen_fit_ref.py; output in tests/ref/fit_ref.txt). */
 static void test_dmbp_loglik_against_scipy(void **state)
 {
     (void)state;
