@@ -320,8 +320,8 @@ static int cmd_scan(sh_session *s, sh_words *w)
     snprintf(origin, sizeof origin, "scan p=%d..%d q=%d..%d%s%s", o.p_min, o.p_max, o.q_min, o.q_max,
              o.garch ? " garch" : "", o.dist == FIT_DIST_T ? " t" : "");
     int added = sh_scan_commit(s, &r, origin);
-    sh_printf(s, "%s: %d models (%d fitted) on %zu observations, %s innovations%s\n", origin, r.ncells, added,
-              s->n, o.dist == FIT_DIST_T ? "Student-t" : "normal", o.garch ? ", GARCH(1,1) variance" : "");
+    sh_printf(s, "%s: %d model%s (%d fitted) on %zu observations, %s innovations%s\n", origin, r.ncells,
+              r.ncells == 1 ? "" : "s", added, s->n, o.dist == FIT_DIST_T ? "Student-t" : "normal", o.garch ? ", GARCH(1,1) variance" : "");
     sh_printf(s, "    id  %-26s %6s %14s %14s %14s  %-6s  %s\n", "model", "N", "loglik", "AICc", "BIC",
               "passed", "verdict");
     sh_json *j = &s->j;
