@@ -95,9 +95,14 @@ void sh_text_fit(sh_session *s, const sh_model *m)
             sh_printf(s, " %.3f", hypot(f->ma_roots[i].re, f->ma_roots[i].im));
         sh_printf(s, "%s  -> %s\n", f->n_ma_roots > 12 ? " ..." : "", f->invertible ? "invertible" : "NOT invertible");
     }
-    sh_printf(s, "  optimiser: %s after %d iteration%s (%d evaluations), gradient norm %.2g\n",
+    char gn[32];
+    if (f->grad_norm < 1e-10)
+        snprintf(gn, sizeof gn, "below 1e-10");   /* rounding noise: not worth digits */
+    else
+        snprintf(gn, sizeof gn, "%.2g", f->grad_norm);
+    sh_printf(s, "  optimiser: %s after %d iteration%s (%d evaluations), gradient norm %s\n",
               f->converged ? "converged" : "did NOT converge", f->iterations, f->iterations == 1 ? "" : "s",
-              f->evaluations, f->grad_norm);
+              f->evaluations, gn);
     sh_text_warnings(s, f, "  ");
 }
 
