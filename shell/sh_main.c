@@ -1,6 +1,7 @@
 /* sh_main.c - the hone program: options, then the prompt or a command file. */
 #include "sh_repl.h"
 #include "sh_journal.h"
+#include "sh_batch.h"
 
 #include <gsl/gsl_errno.h>
 #include <locale.h>
@@ -14,6 +15,7 @@ static void usage(FILE *f)
 {
     fprintf(f,
             "usage: hone [options] [FILE.hone]\n"
+            "       hone batch --commands 'CMD; CMD' FILE.csv ...   (hone batch --help)\n"
             "  (no FILE)          interactive prompt; or commands from standard input when it is not a terminal\n"
             "  FILE, -f FILE      run a command file: commands are echoed; the first error stops (exit 1)\n"
             "  -c 'CMD; CMD'      run commands given on the command line\n"
@@ -42,6 +44,8 @@ int main(int argc, char **argv)
 
     setlocale(LC_ALL, "C");
     gsl_set_error_handler_off();
+    if (argc > 1 && !strcmp(argv[1], "batch"))
+        return sh_batch_main(argc - 1, argv + 1);
     for (int i = 1; i < argc; i++) {
         const char *a = argv[i];
         if (!strcmp(a, "--json")) json = 1;
