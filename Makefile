@@ -2,7 +2,11 @@
 #   make            the program ./hone and the library build/libhone.a
 #   make check      every test; ends with "N passed, N failed"
 #   make demo       the demo sessions on demo-data/
-#   make asan       everything under AddressSanitizer + UBSan, then the tests
+#   make bench      speed figures against the one-pass floor and the scripted baseline
+#                   (BENCH_QUICK=1: n = 10^4 and 10^5 only, fewer runs)
+#   make asan       everything under AddressSanitizer + UBSan (leaks too), then the tests
+#   make valgrind   the demo command files under valgrind memcheck
+#   make fuzz SECONDS=N   libFuzzer targets (clang), N seconds each on their seed corpora
 #   make deps       install the Debian packages the build needs (root)
 #   make install PREFIX=/usr/local
 PREFIX    ?= /usr/local
@@ -26,7 +30,7 @@ LIB_OBJ   := $(LIB_SRC:%.c=$(BUILD)/%.o)
 SH_OBJ    := $(SH_SRC:%.c=$(BUILD)/%.o)
 TEST_BIN  := $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
 
-.PHONY: all check demo asan deps install clean bench valgrind fuzz
+.PHONY: all check demo asan deps install clean bench valgrind fuzz fuzz-run fuzz-build hone-asan-check
 all: hone
 
 $(BUILD)/%.o: %.c $(wildcard fit/*.h diagnose/*.h shell/*.h) Makefile
@@ -54,6 +58,21 @@ $(BUILD)/tests/%: tests/unit/%.c tests/unit/testutil.h $(BUILD)/libhoneshell.a $
 check: hone $(TEST_BIN)
 	@HONE=$(CURDIR)/hone BUILD=$(BUILD) sh tests/run.sh
 
+BENCH_BIN := $(BUILD)/bench/hbench $(BUILD)/bench/empty
+
+$(BUILD)/bench/hbench: tests/bench/hbench.c $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
+	@mkdir -p $(dir $@)
+	@echo "  LINK $@"
+	@$(CC) $(ALL_CFLAGS) -o $@ $< $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(LDLIBS)
+
+$(BUILD)/bench/empty: tests/bench/empty.c
+	@mkdir -p $(dir $@)
+	@echo "  LINK $@"
+	@$(CC) $(ALL_CFLAGS) -o $@ $< -Wl,--no-as-needed $(LDLIBS)
+
+bench: hone $(BENCH_BIN)
+	@HONE=$(CURDIR)/hone BENCH_DIR=$(CURDIR)/$(BUILD)/bench sh tests/bench/run.sh
+
 demo: hone
 	./hone demo-data/bakery.hone
 	./hone demo-data/grain.hone
@@ -63,9 +82,59 @@ asan:
 	  SAN='-fsanitize=address,undefined -fno-sanitize-recover=undefined' \
 	  HONE_BIN=hone-asan hone-asan-check
 
+# The sanitizer options: leaks are errors (LeakSanitizer is part of ASan on
+# x86-64 Linux), any undefined behaviour aborts with a stack.
+SAN_ENV := ASAN_OPTIONS=detect_leaks=1:abort_on_error=0:detect_stack_use_after_return=1 \
+           UBSAN_OPTIONS=halt_on_error=1:print_stacktrace=1 \
+           LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0
+
 hone-asan-check: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(TEST_BIN)
 	$(CC) $(ALL_CFLAGS) -o $(BUILD)/hone $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(LDLIBS)
-	@ASAN_OPTIONS=detect_leaks=1 HONE=$(CURDIR)/$(BUILD)/hone BUILD=$(BUILD) sh tests/run.sh
+	@$(SAN_ENV) HONE=$(CURDIR)/$(BUILD)/hone BUILD=$(BUILD) sh tests/run.sh
+
+# Memcheck on the demo sessions: any error or definitely lost block fails.
+# tests/valgrind.supp names the few one-time allocations of other libraries.
+VALGRIND := valgrind --quiet --error-exitcode=99 --leak-check=full \
+            --errors-for-leak-kinds=definite --show-leak-kinds=definite \
+            --suppressions=tests/valgrind.supp --num-callers=30
+VALGRIND_FILES := demo-data/bakery.hone demo-data/grain.hone
+
+valgrind: hone
+	@for f in $(VALGRIND_FILES); do \
+	  echo "  MEMCHECK $$f"; \
+	  OMP_NUM_THREADS=2 $(VALGRIND) ./hone $$f >/dev/null || { echo "valgrind: $$f failed"; exit 1; }; \
+	done; echo "valgrind: no errors, no definite leaks"
+
+# libFuzzer targets: tests/fuzz/fuzz_*.c against the library and the shell
+# built with clang in build-fuzz/.  Inputs found are kept in
+# build-fuzz/corpus/TARGET (the seeds in tests/fuzz/corpus/TARGET are only
+# read); crashes are written as build-fuzz/TARGET-crash-*.
+SECONDS   ?= 60
+FUZZ_SRC  := $(sort $(wildcard tests/fuzz/fuzz_*.c))
+FUZZ_BIN  := $(FUZZ_SRC:tests/fuzz/%.c=build-fuzz/%)
+
+fuzz:
+	$(MAKE) BUILD=build-fuzz CC=clang OPT='-O1 -g -fno-omit-frame-pointer' \
+	  WARN='-Wall -Wextra -Wno-unused-parameter -Wno-unused-command-line-argument' \
+	  SAN='-fsanitize=fuzzer-no-link,address,undefined -fno-sanitize-recover=undefined' \
+	  fuzz-run
+
+fuzz-build: $(FUZZ_BIN)
+
+build-fuzz/fuzz_%: tests/fuzz/fuzz_%.c $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
+	@echo "  LINK $@"
+	@$(CC) $(ALL_CFLAGS) -fsanitize=fuzzer -o $@ $< $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(LDLIBS)
+
+fuzz-run: $(FUZZ_BIN)
+	@for b in $(FUZZ_BIN); do \
+	  t=$${b#build-fuzz/fuzz_}; mkdir -p build-fuzz/corpus/$$t; \
+	  echo "  FUZZ $$t for $(SECONDS) s"; \
+	  ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=halt_on_error=1:print_stacktrace=1 \
+	  $$b -max_total_time=$(SECONDS) -timeout=20 -rss_limit_mb=2048 -print_final_stats=1 \
+	    -artifact_prefix=build-fuzz/$$t- build-fuzz/corpus/$$t tests/fuzz/corpus/$$t \
+	    >build-fuzz/$$t.log 2>&1 || { tail -n 60 build-fuzz/$$t.log; exit 1; }; \
+	  grep -E '^#[0-9]+[[:space:]]+DONE' build-fuzz/$$t.log | tail -n 1; grep '^Done ' build-fuzz/$$t.log; \
+	done
 
 deps:
 	sh tools/install-deps.sh
@@ -76,4 +145,4 @@ install: hone
 	if [ -f docs/hone.1 ]; then install -m 644 docs/hone.1 $(DESTDIR)$(PREFIX)/share/man/man1/hone.1; fi
 
 clean:
-	rm -rf build build-asan hone
+	rm -rf build build-asan build-fuzz hone

@@ -63,11 +63,53 @@ int diag_center(const double *x, size_t n, double *d)
     return HN_OK;
 }
 
+/* Power of two by which X may be divided so that sums of its values and of
+ * their squares cannot overflow: 1 for ordinary data, 2^-k (exact) when the
+ * largest |x_i| is above 2^500. */
+static double safe_scale(const double *x, size_t n)
+{
+    double mx = 0.0;
+    for (size_t i = 0; i < n; i++)
+        if (fabs(x[i]) > mx)
+            mx = fabs(x[i]);
+    if (!(mx > 0x1p500))
+        return 1.0;
+    int e;
+    frexp(mx, &e);
+    return ldexp(1.0, -e);
+}
+
 int diag_mean_sd(const double *x, size_t n, double *mean, double *sd)
 {
     double m0, c;
     if (n < 1 || (sd && n < 2))
         return HN_ESHORT;
+    for (size_t i = 0; i < n; i++)
+        if (!isfinite(x[i]))
+            return HN_ENUMERIC;
+    double k = safe_scale(x, n);
+    if (k != 1.0) {
+        /* Values near the top of the double range: work on x * k (an exact
+         * power-of-two scaling) and scale the results back. */
+        double *xs = malloc(n * sizeof *xs);
+        if (!xs)
+            return HN_ENOMEM;
+        for (size_t i = 0; i < n; i++)
+            xs[i] = x[i] * k;
+        double ms = 0.0, ss = 0.0;
+        int rc = diag_mean_sd(xs, n, mean ? &ms : NULL, sd ? &ss : NULL);
+        free(xs);
+        if (rc != HN_OK)
+            return rc;
+        if (mean)
+            *mean = ms / k;
+        if (sd) {
+            *sd = ss / k;
+            if (!isfinite(*sd))
+                return HN_ENUMERIC;
+        }
+        return HN_OK;
+    }
     int rc = mean_parts(x, n, &m0, &c);
     if (rc != HN_OK)
         return rc;
@@ -260,4 +302,48 @@ int diag_share_order(size_t n)
     if (k > n - 2)
         k = n - 2;
     return (int)k;
+}
+
+/* The K-th smallest (0-based) of A[0..n-1], by Wirth's selection with a
+ * median-of-three pivot; A is reordered so that A[i] <= A[K] <= A[j] for
+ * i < K < j.  The value is that of a full sort, found in O(n) on average. */
+static double select_kth(double *a, size_t n, size_t k)
+{
+    long l = 0, m = (long)n - 1, kk = (long)k;
+    while (l < m) {
+        double u = a[l], v = a[l + (m - l) / 2], w = a[m];
+        double x = u < v ? (v < w ? v : (u < w ? w : u)) : (u < w ? u : (v < w ? w : v));
+        long i = l, j = m;
+        do {
+            while (a[i] < x)
+                i++;
+            while (x < a[j])
+                j--;
+            if (i <= j) {
+                double t = a[i];
+                a[i] = a[j];
+                a[j] = t;
+                i++;
+                j--;
+            }
+        } while (i <= j);
+        if (j < kk)
+            l = i;
+        if (kk < i)
+            m = j;
+    }
+    return a[kk];
+}
+
+/* Median of A[0..n-1] (n > 0); A is reordered. */
+double diag_median_inplace(double *a, size_t n)
+{
+    size_t h = n / 2;
+    if (n % 2)
+        return select_kth(a, n, h);
+    double lo = select_kth(a, n, h - 1), hi = a[h];
+    for (size_t i = h + 1; i < n; i++)
+        if (a[i] < hi)
+            hi = a[i];
+    return 0.5 * (lo + hi);
 }

@@ -15,8 +15,10 @@
  * to about double-double accuracy (compensated sum, then a second
  * compensated pass over the deviations that corrects it), and the sum of
  * squares is a compensated sum of those corrected deviations.  SD may be
- * NULL.  Returns HN_OK; HN_ESHORT when n < 1 (n < 2 when SD is wanted);
- * HN_ENUMERIC when a value is not finite. */
+ * NULL.  Series whose largest |x| is above 2^500 are first scaled by an
+ * exact power of two, so values up to the largest double give finite
+ * results.  Returns HN_OK; HN_ESHORT when n < 1 (n < 2 when SD is wanted);
+ * HN_ENUMERIC when a value is not finite; HN_ENOMEM (scaled copy). */
 int diag_mean_sd(const double *x, size_t n, double *mean, double *sd);
 
 /* Deviations from the mean, D[i] = x_i - xbar, written to D[0..n-1] (caller
@@ -65,5 +67,9 @@ int diag_share_order(size_t n);
  * Q(l) = 2 sum_{k>=1} (-1)^(k-1) exp(-2 k^2 l^2), 1 for l <= 0.  Used for
  * the cumulative periodogram bound (defined in diag_portmanteau.c). */
 double diag_kolmogorov_q(double l);
+
+/* Median of A[0..n-1] (n > 0) by selection in O(n) on average; A is
+ * reordered. */
+double diag_median_inplace(double *a, size_t n);
 
 #endif

@@ -51,6 +51,9 @@ int fit_check_input(const double *y, size_t n, const fit_spec *spec)
     for (size_t t = 0; t < n; t++)
         if (!isfinite(y[t]))
             return HN_EINVAL;
+    for (size_t t = 0; t < n; t++)
+        if (fabs(y[t]) > FIT_MAX_ABS_VALUE)
+            return HN_ELIMIT;
     if (n < fit_min_obs(spec))
         return HN_ESHORT;
     for (size_t t = 1; t < n; t++)

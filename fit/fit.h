@@ -77,7 +77,8 @@ typedef struct {
  * filled (and owns its arrays: release with fit_result_free), even when the
  * optimiser did not converge (then FIT_WARN_NOCONV is set and converged = 0).
  * Errors: HN_ESHORT (too few observations for the parameters), HN_ECONST,
- * HN_EINVAL, HN_ENOMEM, HN_EINTR, HN_ENUMERIC; *RES is then zeroed. */
+ * HN_EINVAL, HN_ELIMIT (a value beyond FIT_MAX_ABS_VALUE), HN_ENOMEM, HN_EINTR,
+ * HN_ENUMERIC; *RES is then zeroed. */
 int fit_model(const double *y, size_t n, const fit_spec *spec,
               const fit_options *opt, fit_result *res);
 
@@ -85,6 +86,11 @@ void fit_result_free(fit_result *res);
 
 /* Deep copy SRC into *DST (fresh arrays).  HN_OK or HN_ENOMEM. */
 int fit_result_copy(fit_result *dst, const fit_result *src);
+
+/* Largest |y| fit_model accepts: beyond it the sums of squares in the
+ * likelihood could overflow a double (1e150 squared is 1e300, leaving room
+ * for 1e8 terms), so such series are refused with HN_ELIMIT; rescale them. */
+#define FIT_MAX_ABS_VALUE 1e150
 
 /* Smallest series length fit_model accepts for SPEC (stated rule:
  * max AR lag + max(10, 3 x parameters), and 100 with a GARCH part). */

@@ -110,7 +110,9 @@ static int cmd_series(sh_session *s, sh_words *w)
     double mean, sd, lo = INFINITY, hi = -INFINITY;
     if (n < 2)
         return sh_fail(s, -1, "the working series has %zu value%s; nothing to summarise", n, n == 1 ? "" : "s");
-    diag_mean_sd(s->y, n, &mean, &sd);
+    int mrc = diag_mean_sd(s->y, n, &mean, &sd);
+    if (mrc != HN_OK)
+        return sh_fail(s, -1, "cannot summarise the working series: %s", hn_strerror(mrc));
     for (size_t i = 0; i < n; i++) {
         if (s->y[i] < lo) lo = s->y[i];
         if (s->y[i] > hi) hi = s->y[i];

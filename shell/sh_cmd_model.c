@@ -80,6 +80,10 @@ static int cmd_fit(sh_session *s, sh_words *w)
     int rc = fit_model(s->y, s->n, &spec, &opt, &r);
     if (rc == HN_EINTR)
         return sh_fail(s, -1, "fit of %s interrupted; no model added", spec_text);
+    if (rc == HN_ELIMIT)
+        return sh_fail(s, sh_arg(w, 0), "cannot fit %s: the series has values beyond +-%g, whose squares "
+                       "could overflow in the likelihood; rescale it (e.g. divide by a power of ten)",
+                       spec_text, FIT_MAX_ABS_VALUE);
     if (rc != HN_OK)
         return sh_fail(s, sh_arg(w, 0), "cannot fit %s: %s", spec_text, hn_strerror(rc));
     sh_model *m = sh_add_model(s, &r, 0, "fitted by hand");
