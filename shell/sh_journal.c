@@ -25,6 +25,8 @@ struct sh_journal {
     char *mem;            /* memory mode: the text so far (open_memstream) */
     size_t memlen;
     size_t last_off;      /* memory mode: where the last entry starts */
+    sh_journal_file inputs[SH_JOURNAL_MAX_LISTED];  /* the first input lines written */
+    int ninputs;
 };
 
 int sh_sha256_file(const char *path, char hex[65], long long *size)
@@ -138,6 +140,12 @@ int sh_journal_input(sh_journal *j, const char *path)
         return rc;
     fprintf(j->f, "input     sha256=%s bytes=%lld path=%s\n", hex, size, path);
     sync_journal(j);
+    if (j->ninputs < SH_JOURNAL_MAX_LISTED) {
+        sh_journal_file *in = &j->inputs[j->ninputs++];
+        snprintf(in->path, sizeof in->path, "%s", path);
+        memcpy(in->sha256, hex, sizeof in->sha256);
+        in->bytes = size;
+    }
     return HN_OK;
 }
 
@@ -176,6 +184,12 @@ void sh_journal_entry(sh_journal *j, const char *line, const char *output, const
 }
 
 const char *sh_journal_path(const sh_journal *j) { return j->path; }
+
+const sh_journal_file *sh_journal_inputs(const sh_journal *j, int *n)
+{
+    *n = j->ninputs;
+    return j->inputs;
+}
 
 sh_journal *sh_journal_open_memory(const char *label)
 {

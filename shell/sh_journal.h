@@ -27,6 +27,15 @@
 #include <stddef.h>
 
 typedef struct sh_journal sh_journal;
+
+#define SH_JOURNAL_MAX_LISTED 32   /* input files a journal remembers for reports */
+
+/* An input line as written: the file, its SHA-256 and size. */
+typedef struct {
+    char path[1024];
+    char sha256[65];
+    long long bytes;
+} sh_journal_file;
 struct sh_session;
 
 /* Create PATH (replacing an existing file) and write the header.  NULL on
@@ -43,6 +52,9 @@ sh_journal *sh_journal_open_memory(const char *label);
 /* Memory journal: the text of the last entry ("> ...\n| ...\n= ok\n"),
  * length in *LEN; valid until the next entry or close.  "" for a file journal. */
 const char *sh_journal_last(sh_journal *j, size_t *len);
+/* The input lines written so far (the first SH_JOURNAL_MAX_LISTED), count
+ * in *N; storage of J. */
+const sh_journal_file *sh_journal_inputs(const sh_journal *j, int *n);
 /* The journal's path (static storage of J). */
 const char *sh_journal_path(const sh_journal *j);
 /* Write the 'ended' line (file journals), close and free J (NULL is fine). */

@@ -241,6 +241,13 @@ static int write_html(FILE *f, sh_session *s, figures *F, const provenance *pv, 
         esc(f, sh_journal_path(s->journal));
         fputs(" (recording: every command with its output and the SHA-256 of every input file; "
               "<code>replay JOURNAL verify</code> reproduces it)</dd>\n", f);
+        int ni;
+        const sh_journal_file *in = sh_journal_inputs(s->journal, &ni);
+        for (int i = 0; i < ni; i++) {
+            fputs("<dt>journal input</dt><dd>", f);
+            esc(f, in[i].path);
+            fprintf(f, ": SHA-256 <code>%s</code>, %lld bytes</dd>\n", in[i].sha256, in[i].bytes);
+        }
     } else {
         fputs("<dt>journal</dt><dd>not recording (<code>record FILE</code> or <code>hone --record FILE</code> keeps an "
               "audit journal)</dd>\n", f);
@@ -589,6 +596,15 @@ static int write_pdf(const char *tmp, sh_session *s, figures *F, const provenanc
              s->journal ? sh_journal_path(s->journal) : "",
              s->journal ? " (every command and output, with the SHA-256 of every input; replay JOURNAL verify reproduces it)" : "");
     pdf_body(&p, buf);
+    if (s->journal) {
+        int ni;
+        const sh_journal_file *in = sh_journal_inputs(s->journal, &ni);
+        for (int i = 0; i < ni; i++) {
+            snprintf(buf, sizeof buf, "journal input %.900s: SHA-256 %s, %lld bytes", in[i].path, in[i].sha256,
+                     in[i].bytes);
+            pdf_text(&p, buf, 7.5, 0, 1, 0.12, 0.14, 0.16);
+        }
+    }
     snprintf(buf, sizeof buf, "settings: alpha %g, portmanteau lags %s, interval level %g %%", s->alpha,
              s->lags ? "as set" : "by rule", s->level);
     pdf_body(&p, buf);

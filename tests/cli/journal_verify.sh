@@ -52,4 +52,13 @@ printf '%s\n' "$out" | grep -q "journal line $line: *| loaded 731" || { echo "di
 out=$("$HONE" -c 'replay j.txt; models' 2>/dev/null)
 printf '%s\n' "$out" | grep -q "every output matched the journal" || { echo "plain replay did not match"; exit 1; }
 printf '%s\n' "$out" | grep -q '^ \* *2  ar\[1,7\]' || { echo "replayed session lacks the current model 2"; exit 1; }
+
+# record FILE / record off at the prompt: only the commands in between are kept.
+out=$("$HONE" -c 'record k.txt; record; load bakery-orders.csv; fit ar(2); record off; fit ar(3); replay k.txt verify' 2>&1) ||
+  { printf '%s\n' "$out"; echo "record/replay at the prompt failed"; exit 1; }
+printf '%s\n' "$out" | grep -q "recording to k.txt" || { echo "record did not say where"; exit 1; }
+[ "$(grep -c '^> ' k.txt)" -eq 2 ] || { cat k.txt; echo "want 2 recorded commands (load, fit ar(2))"; exit 1; }
+grep -q '^> record' k.txt && { echo "record commands were recorded"; exit 1; }
+printf '%s\n' "$out" | grep -q "verified k.txt: all 2 commands reproduced" || { printf '%s\n' "$out"; exit 1; }
+"$HONE" -c 'record off' > /dev/null 2>&1 && { echo "record off without a journal succeeded"; exit 1; }
 exit 0
