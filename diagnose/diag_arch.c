@@ -10,21 +10,6 @@
 #include "diag_stats.h"
 #include "hn_status.h"
 
-static void fill(diag_test *t, const char *name, double stat, double df, double p,
-                 double alpha, double effect, const char *effect_label)
-{
-    t->name = name;
-    t->criterion = DIAG_VOLATILITY;
-    t->valid = 1;
-    t->statistic = stat;
-    t->df = df;
-    t->p = p;
-    t->pass = p >= alpha;
-    t->effect = effect;
-    t->effect_label = effect_label;
-    t->detail[0] = '\0';
-}
-
 /* Squares of the series as given (SQ: n values, caller allocates); the
  * checks run on residuals, and a mean away from zero is the mean check's
  * business.  HN_ENUMERIC when a value is not finite. */
@@ -87,7 +72,7 @@ int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *ou
             big = fabs(r[k - 1]);
     }
     q *= dn * (dn + 2.0);
-    fill(out, name, q, (double)m, gsl_cdf_chisq_Q(q, (double)m), alpha, big,
+    diag_test_fill(out, name, DIAG_VOLATILITY, q, (double)m, gsl_cdf_chisq_Q(q, (double)m), alpha, big,
          "largest |autocorrelation| of the squares");
 
     double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt(dn);
@@ -250,7 +235,7 @@ int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
         goto done;
     }
     double stat = (double)rows * r2;
-    fill(out, name, stat, (double)q, gsl_cdf_chisq_Q(stat, (double)q), alpha, r2,
+    diag_test_fill(out, name, DIAG_VOLATILITY, stat, (double)q, gsl_cdf_chisq_Q(stat, (double)q), alpha, r2,
          "share of the variance of x^2 predicted by its lags (R^2)");
     snprintf(out->detail, sizeof out->detail,
              "x^2 on %d lags of itself and a constant, %zu rows; lag-1 coefficient %.3g", q, rows, b[1]);

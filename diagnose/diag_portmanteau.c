@@ -15,22 +15,6 @@
 static const char SERIAL_EFFECT[] =
     "share of variance a long autoregression predicts (order-adjusted)";
 
-/* Fill the common fields of a computed test. */
-static void fill(diag_test *t, const char *name, diag_criterion c, double stat, double df,
-                 double p, double alpha)
-{
-    memset(t, 0, sizeof *t);
-    t->name = name;
-    t->criterion = c;
-    t->valid = 1;
-    t->statistic = stat;
-    t->df = df;
-    t->p = p;
-    t->pass = !(p < alpha);
-    t->effect = NAN;
-    t->effect_label = NULL;
-}
-
 static int bad_alpha(double alpha)
 {
     return !(alpha > 0.0 && alpha < 1.0);
@@ -62,7 +46,8 @@ int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out)
     double p = 2.0 * gsl_cdf_tdist_Q(fabs(t), df);
     if (p > 1.0)
         p = 1.0;
-    fill(out, name, DIAG_MEAN, t, df, p, alpha);
+    memset(out, 0, sizeof *out);
+    diag_test_fill(out, name, DIAG_MEAN, t, df, p, alpha, NAN, NULL);
     out->effect = mean / sd;
     out->effect_label = "mean in standard deviations";
     snprintf(out->detail, sizeof out->detail, "mean %.6g, sd %.6g, n %zu; two-sided Student-t",
@@ -167,7 +152,8 @@ static int portmanteau(const double *x, size_t n, int m, int df_adjust, double a
     q *= ljung ? dn * (dn + 2.0) : dn;
     free(acf);
     double p = gsl_cdf_chisq_Q(q, (double)df);
-    fill(out, name, DIAG_SERIAL, q, (double)df, p, alpha);
+    memset(out, 0, sizeof *out);
+    diag_test_fill(out, name, DIAG_SERIAL, q, (double)df, p, alpha, NAN, NULL);
     out->effect = effect;
     out->effect_label = SERIAL_EFFECT;
     snprintf(out->detail, sizeof out->detail, "%d lags, df %d - %d; lags outside +/-%.3f: %s",
@@ -392,7 +378,8 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
     double sm = sqrt((double)M);
     double lambda = (sm + 0.12 + 0.11 / sm) * D;
     double p = diag_kolmogorov_q(lambda);
-    fill(out, name, DIAG_SERIAL, D, NAN, p, alpha);
+    memset(out, 0, sizeof *out);
+    diag_test_fill(out, name, DIAG_SERIAL, D, NAN, p, alpha, NAN, NULL);
     snprintf(out->detail, sizeof out->detail,
              "KS distance %.4f over %zu frequencies j/n, j = 1..%zu; largest near frequency %zu/%zu "
              "(period %.1f), cumulative share %.3f against uniform %.3f",

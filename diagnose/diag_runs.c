@@ -7,66 +7,8 @@
 #include <gsl/gsl_cdf.h>
 
 #include "diag_checks.h"
+#include "diag_stats.h"
 #include "hn_status.h"
-
-/* The K-th smallest (0-based) of A[0..n-1], by Wirth's selection with a
- * median-of-three pivot; A is reordered so that A[i] <= A[K] <= A[j] for
- * i < K < j.  The value is that of a full sort, found in O(n) on average. */
-static double select_kth(double *a, size_t n, size_t k)
-{
-    long l = 0, m = (long)n - 1, kk = (long)k;
-    while (l < m) {
-        double u = a[l], v = a[l + (m - l) / 2], w = a[m];
-        double x = u < v ? (v < w ? v : (u < w ? w : u)) : (u < w ? u : (v < w ? w : v));
-        long i = l, j = m;
-        do {
-            while (a[i] < x)
-                i++;
-            while (x < a[j])
-                j--;
-            if (i <= j) {
-                double t = a[i];
-                a[i] = a[j];
-                a[j] = t;
-                i++;
-                j--;
-            }
-        } while (i <= j);
-        if (j < kk)
-            l = i;
-        if (kk < i)
-            m = j;
-    }
-    return a[kk];
-}
-
-/* Median of A[0..n-1] (n > 0); A is reordered. */
-static double median_select(double *a, size_t n)
-{
-    size_t h = n / 2;
-    if (n % 2)
-        return select_kth(a, n, h);
-    double lo = select_kth(a, n, h - 1), hi = a[h];
-    for (size_t i = h + 1; i < n; i++)
-        if (a[i] < hi)
-            hi = a[i];
-    return 0.5 * (lo + hi);
-}
-
-static void fill(diag_test *t, const char *name, double stat, double p, double alpha,
-                 double effect, const char *effect_label)
-{
-    t->name = name;
-    t->criterion = DIAG_RANDOM;
-    t->valid = 1;
-    t->statistic = stat;
-    t->df = NAN;
-    t->p = p;
-    t->pass = p >= alpha;
-    t->effect = effect;
-    t->effect_label = effect_label;
-    t->detail[0] = '\0';
-}
 
 /* Wald-Wolfowitz runs test about the median.  Values above the median are
  * coded +, below -, values equal to the median are dropped; R is the number
@@ -103,7 +45,7 @@ int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out)
         }
     }
     memcpy(s, x, n * sizeof *x);
-    double med = median_select(s, n);
+    double med = diag_median_inplace(s, n);
     free(s);
 
     size_t n1 = 0, n2 = 0, runs = 0;
@@ -128,7 +70,7 @@ int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out)
     double er = 2.0 * a * b / m + 1.0;
     double vr = 2.0 * a * b * (2.0 * a * b - a - b) / (m * m * (m - 1.0));
     double z = ((double)runs - er) / sqrt(vr);
-    fill(out, name, z, 2.0 * gsl_cdf_ugaussian_Q(fabs(z)), alpha, (double)runs / er - 1.0,
+    diag_test_fill(out, name, DIAG_RANDOM, z, NAN, 2.0 * gsl_cdf_ugaussian_Q(fabs(z)), alpha, (double)runs / er - 1.0,
          "runs relative to expected, minus 1");
     snprintf(out->detail, sizeof out->detail,
              "%zu runs about the median %.6g (expected %.1f); %zu above, %zu below, %zu equal dropped; "
@@ -173,7 +115,7 @@ int diag_turning_points(const double *x, size_t n, double alpha, diag_test *out)
     double mean = 2.0 * (dn - 2.0) / 3.0;
     double var = (16.0 * dn - 29.0) / 90.0;
     double z = ((double)tp - mean) / sqrt(var);
-    fill(out, name, z, 2.0 * gsl_cdf_ugaussian_Q(fabs(z)), alpha, (double)tp / mean - 1.0,
+    diag_test_fill(out, name, DIAG_RANDOM, z, NAN, 2.0 * gsl_cdf_ugaussian_Q(fabs(z)), alpha, (double)tp / mean - 1.0,
          "turning points relative to expected, minus 1");
     snprintf(out->detail, sizeof out->detail,
              "%zu turning points (expected %.1f, sd %.2f)%s", tp, mean, sqrt(var),

@@ -45,3 +45,18 @@ void diag_test_invalid(diag_test *t, const char *name, diag_criterion c, const c
     t->effect_label = NULL;
     snprintf(t->detail, sizeof t->detail, "%s", why ? why : "not computable");
 }
+
+void diag_test_fill(diag_test *t, const char *name, diag_criterion c, double statistic, double df,
+                    double p, double alpha, double effect, const char *effect_label)
+{
+    t->name = name;
+    t->criterion = c;
+    t->valid = 1;
+    t->statistic = statistic;
+    t->df = df;
+    t->p = p;
+    t->pass = !(p < alpha);
+    t->effect = effect;
+    t->effect_label = effect_label;
+    t->detail[0] = '\0';
+}

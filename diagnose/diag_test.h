@@ -41,4 +41,9 @@ typedef struct {
 /* Fill T as "not computable" with a reason. */
 void diag_test_invalid(diag_test *t, const char *name, diag_criterion c, const char *why);
 
+/* Fill T as a computed check: valid, pass = !(P < ALPHA), detail empty.
+ * DF and EFFECT may be NAN; EFFECT_LABEL may be NULL. */
+void diag_test_fill(diag_test *t, const char *name, diag_criterion c, double statistic, double df,
+                    double p, double alpha, double effect, const char *effect_label);
+
 #endif

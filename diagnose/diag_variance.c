@@ -7,6 +7,7 @@
 #include <gsl/gsl_cdf.h>
 
 #include "diag_checks.h"
+#include "diag_stats.h"
 #include "hn_status.h"
 
 /* Numerics.  Every sum of squares is taken about a centre computed first
@@ -15,55 +16,11 @@
  * keep the digits of their differences.  Each two-pass mean adds the mean of
  * the first-pass deviations as a correction. */
 
-/* The K-th smallest (0-based) of A[0..n-1], by Wirth's selection with a
- * median-of-three pivot; A is reordered so that A[i] <= A[K] <= A[j] for
- * i < K < j.  The value is that of a full sort, found in O(n) on average. */
-static double select_kth(double *a, size_t n, size_t k)
-{
-    long l = 0, m = (long)n - 1, kk = (long)k;
-    while (l < m) {
-        double u = a[l], v = a[l + (m - l) / 2], w = a[m];
-        double x = u < v ? (v < w ? v : (u < w ? w : u)) : (u < w ? u : (v < w ? w : v));
-        long i = l, j = m;
-        do {
-            while (a[i] < x)
-                i++;
-            while (x < a[j])
-                j--;
-            if (i <= j) {
-                double t = a[i];
-                a[i] = a[j];
-                a[j] = t;
-                i++;
-                j--;
-            }
-        } while (i <= j);
-        if (j < kk)
-            l = i;
-        if (kk < i)
-            m = j;
-    }
-    return a[kk];
-}
-
-/* Median of A[0..n-1] (n > 0); A is reordered. */
-static double median_select(double *a, size_t n)
-{
-    size_t h = n / 2;
-    if (n % 2)
-        return select_kth(a, n, h);
-    double lo = select_kth(a, n, h - 1), hi = a[h];
-    for (size_t i = h + 1; i < n; i++)
-        if (a[i] < hi)
-            hi = a[i];
-    return 0.5 * (lo + hi);
-}
-
 /* Median of X[0..n-1] using SCRATCH (n doubles) for the sorted copy. */
 static double median_of(const double *x, size_t n, double *scratch)
 {
     memcpy(scratch, x, n * sizeof *x);
-    return median_select(scratch, n);
+    return diag_median_inplace(scratch, n);
 }
 
 /* Two-pass mean of X[0..n-1] (n > 0). */
@@ -308,21 +265,6 @@ static void describe_blocks(const double *d, const size_t *sizes, size_t nb, siz
                  which == 0 ? "mean" : "sd", rule, nb);
 }
 
-static void fill(diag_test *t, const char *name, double stat, double df, double p,
-                 double alpha, double effect, const char *effect_label)
-{
-    t->name = name;
-    t->criterion = DIAG_VARIANCE;
-    t->valid = 1;
-    t->statistic = stat;
-    t->df = df;
-    t->p = p;
-    t->pass = p >= alpha;
-    t->effect = effect;
-    t->effect_label = effect_label;
-    t->detail[0] = '\0';
-}
-
 /* Shared driver of the two block tests: WHICH 0 = ANOVA of means,
  * 1 = Brown-Forsythe of spreads. */
 static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
@@ -373,11 +315,11 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
             hi = sd > hi ? sd : hi;
             start += sizes[b];
         }
-        fill(out, name, F, df1, p, alpha, lo > 0.0 ? hi / lo : INFINITY,
+        diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, lo > 0.0 ? hi / lo : INFINITY,
              "largest over smallest block sd");
         describe_blocks(d, sizes, nblocks, n, alpha, 1, out->detail, sizeof out->detail, scratch);
     } else {
-        fill(out, name, F, df1, p, alpha, ssb / (ssb + ssw),
+        diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, ssb / (ssb + ssw),
              "share of variance explained by block means (eta squared)");
         describe_blocks(d, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, scratch);
     }
