@@ -556,11 +556,22 @@ typedef struct {
     size_t n;
     double N;
     double *gs;
+    /* the point of the last Gauss-Newton pass, with f and its gradient, so
+     * that BFGS2's first evaluation there costs no second pass */
+    int memo;
+    double mx[FIT_MAX_PARAMS], mf, mg[FIT_MAX_PARAMS];
 } css_ctx;
 
 static int css_objective(const double *x, double *f, double *grad, void *vctx)
 {
     css_ctx *c = vctx;
+    const size_t nmb = (size_t)c->ws->nm * sizeof *x;
+    if (c->memo && memcmp(x, c->mx, nmb) == 0) {
+        *f = c->mf;
+        if (grad)
+            memcpy(grad, c->mg, nmb);
+        return HN_OK;
+    }
     double ssr;
     int rc = fit_arma_resid(c->ws, c->z, c->n, x, NULL, NULL, &ssr, grad ? c->gs : NULL);
     if (rc != HN_OK)
@@ -592,6 +603,10 @@ static int css_gn(css_ctx *c, const double *x, double *f, double *g, double *M)
         for (int l = 0; l < nm; l++)
             M[k * nm + l] /= ssr;
     }
+    memcpy(c->mx, x, (size_t)nm * sizeof *x);
+    memcpy(c->mg, g, (size_t)nm * sizeof *g);
+    c->mf = *f;
+    c->memo = 1;
     return HN_OK;
 }
 
@@ -802,16 +817,15 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
         loc /= (double)n;
     }
     {
-        double mx = 0.0, ss = 0.0;
-        for (size_t t = 0; t < n; t++)
-            if (fabs(y[t] - loc) > mx)
-                mx = fabs(y[t] - loc);
-        if (mx > 0.0)
-            for (size_t t = 0; t < n; t++) {
-                double r = (y[t] - loc) / mx;
-                ss += r * r;
-            }
-        scale = mx * sqrt(ss / (double)n);
+        /* second pass about the mean (fit_model refuses |y| > 1e150, so the
+         * squares cannot overflow) */
+        double ss = 0.0, c = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            double r = y[t] - loc, v = r * r - c, u = ss + v;
+            c = (u - ss) - v;
+            ss = u;
+        }
+        scale = sqrt(ss / (double)n);
     }
     if (!isfinite(scale) || !isfinite(loc))
         return HN_ENUMERIC;
@@ -835,7 +849,13 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     double x[FIT_MAX_PARAMS];
     if ((rc = fit_arma_start(spec, z, n, x)) != HN_OK)
         goto fail;
-    css_ctx ctx = { ws, z, n, (double)(n - p), gs };
+    css_ctx ctx;
+    memset(&ctx, 0, sizeof ctx);
+    ctx.ws = ws;
+    ctx.z = z;
+    ctx.n = n;
+    ctx.N = (double)(n - p);
+    ctx.gs = gs;
     fit_optim_report rep;
     memset(&rep, 0, sizeof rep);
     if (nm > 0) {
