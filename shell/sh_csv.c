@@ -751,8 +751,13 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
     if (!R->rc && !R->done && ferror(f))
         fail(R, HN_EIO, 0, 0, "read error: %s", strerror(errno));
     if (!R->rc && !R->done && csv_fini(&p, on_field, on_row, R) != 0 && !R->rc)
-        fail(R, HN_EPARSE, R->field > 0 ? R->row_line : 0, 0,
-             "a quote opened after line %ld is never closed", R->last_row_end);
+    {
+        if (R->last_row_end > 0)
+            fail(R, HN_EPARSE, R->field > 0 ? R->row_line : 0, 0,
+                 "a quote opened after line %ld is never closed", R->last_row_end);
+        else
+            fail(R, HN_EPARSE, 0, 0, "a quote opened in the first line is never closed");
+    }
     csv_free(&p);
     free(buf);
     fclose(f);
