@@ -228,6 +228,31 @@ static void test_series_f_ma(void **state)
     TU_NEAR(r.sigma2 * 70.0, 8010.87519052947, 1e-8);
     assert_int_equal(r.start, 0);
     fit_result_free(&r);
+    /* specific lags: AR at 1 and 3, MA at 2 (same scipy procedure) */
+    s = spec_of("ar[1,3]+ma[2]");
+    assert_int_equal(fit_model(y, n, &s, NULL, &r), HN_OK);
+    assert_true(r.converged);
+    assert_int_equal(r.n_eff, 67);
+    TU_NEAR(r.par[0], 51.37881669, 1e-6);
+    TU_NEAR(r.par[1], -0.33754256, 1e-6);
+    TU_NEAR(r.par[2], -0.05498047, 1e-6);
+    TU_NEAR(r.par[3], 0.17240106, 1e-6);
+    TU_NEAR(r.sigma2 * 67.0, 7283.885457035121, 1e-8);
+    assert_int_equal(r.n_ar_roots, 3);
+    assert_int_equal(r.n_ma_roots, 2);
+    fit_result_free(&r);
+    /* without a mean the level of about 51 is carried by an AR root next to
+     * 1, which the result flags (same scipy procedure) */
+    s = spec_of("arma(1,1) nomean");
+    assert_int_equal(fit_model(y, n, &s, NULL, &r), HN_OK);
+    assert_true(r.converged);
+    TU_NEAR(r.par[0], 0.99981709, 1e-6);
+    TU_NEAR(r.par[1], -0.9585734, 1e-6);
+    TU_NEAR(r.sigma2 * 69.0, 10345.799828677662, 1e-8);
+    assert_true(r.stationary);
+    assert_true(r.warnings & FIT_WARN_NEAR_UNIT_ROOT);
+    assert_int_equal(r.k_ic, 3);
+    fit_result_free(&r);
     free(y);
 }
 
