@@ -278,6 +278,11 @@ static int cmd_replay(sh_session *s, sh_words *w)
         return sh_fail(s, fi, "%s; nothing replayed", *err ? err : hn_strerror(rc));
     }
 
+    /* A recording session keeps the replayed journal's hash: the state it
+     * now builds rests on that journal. */
+    if (s->journal)
+        sh_journal_input(s->journal, path);
+
     /* Inputs first: a changed file stops the replay before anything runs. */
     int bad = 0, deferred = 0;
     char msg[1400];

@@ -152,7 +152,7 @@ static const char CSS[] =
     "th,td{padding:4px 10px;text-align:left;border-bottom:1px solid #ecebe6;vertical-align:top}"
     "th{background:#f0eee8;font-weight:600}"
     "td.n{text-align:right;font-variant-numeric:tabular-nums;font-family:ui-monospace,Menlo,Consolas,monospace}"
-    "tr.cur td{background:#fbf6e4}"
+    "tr.cur td{background:#fbf6e4}td.m{white-space:nowrap}"
     ".white{color:#1d6b3a;font-weight:600}.notwhite{color:#a2312b;font-weight:600}"
     "pre{background:#f7f6f2;border:1px solid #ecebe6;padding:8px 10px;font-size:12px;line-height:1.35;"
     "overflow-x:auto}"
@@ -266,7 +266,7 @@ static int write_html(FILE *f, sh_session *s, figures *F, const provenance *pv, 
         for (int i = 0; i < s->nmodels; i++) {
             const sh_model *m = &s->models[i];
             fit_spec_format(&m->fit.spec, spec, sizeof spec);
-            fprintf(f, "<tr%s><td class=\"n\">%d%s</td><td>", i == s->current ? " class=\"cur\"" : "", m->id,
+            fprintf(f, "<tr%s><td class=\"n\">%d%s</td><td class=\"m\">", i == s->current ? " class=\"cur\"" : "", m->id,
                     i == s->current ? " *" : "");
             esc(f, spec);
             fputs("</td><td>", f);
