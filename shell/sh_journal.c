@@ -6,6 +6,7 @@
 #include <errno.h>
 #include <fcntl.h>
 #include <openssl/evp.h>
+#include <pwd.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -106,6 +107,10 @@ sh_journal *sh_journal_open(const char *path, const sh_session *s, char *err, si
     const char *user = getenv("USER");
     if (!user || !*user)
         user = getenv("LOGNAME");
+    if (!user || !*user) {
+        const struct passwd *pw = getpwuid(getuid());
+        user = pw ? pw->pw_name : NULL;
+    }
     gethostname(host, sizeof host - 1);
     host[sizeof host - 1] = '\0';
     utc_now(when, sizeof when);
