@@ -48,12 +48,15 @@ int fit_check_input(const double *y, size_t n, const fit_spec *spec)
         if (spec->ma_lag[j] < 1 || spec->ma_lag[j] > FIT_MAX_LAG ||
             (j > 0 && spec->ma_lag[j] <= spec->ma_lag[j - 1]))
             return HN_EINVAL;
-    for (size_t t = 0; t < n; t++)
+    /* one scan: a non-finite value anywhere outranks a value beyond the limit */
+    int too_big = 0;
+    for (size_t t = 0; t < n; t++) {
         if (!isfinite(y[t]))
             return HN_EINVAL;
-    for (size_t t = 0; t < n; t++)
-        if (fabs(y[t]) > FIT_MAX_ABS_VALUE)
-            return HN_ELIMIT;
+        too_big |= fabs(y[t]) > FIT_MAX_ABS_VALUE;
+    }
+    if (too_big)
+        return HN_ELIMIT;
     if (n < fit_min_obs(spec))
         return HN_ESHORT;
     for (size_t t = 1; t < n; t++)

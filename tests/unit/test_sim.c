@@ -63,6 +63,10 @@ static void test_recipe(void **state)
     assert_int_equal(fit_simulate(&s, par, 20, 30, 43, b), HN_OK);
     assert_memory_equal(a, b, sizeof a);
     assert_true(a[0] != out[0] || a[1] != out[1]);
+    /* seed 0 is GSL's default seed 4357 (fit_sim.h) */
+    assert_int_equal(fit_simulate(&s, par, 20, 30, 0, a), HN_OK);
+    assert_int_equal(fit_simulate(&s, par, 20, 30, 4357, b), HN_OK);
+    assert_memory_equal(a, b, sizeof a);
 }
 
 static void test_moments(void **state)
