@@ -24,11 +24,11 @@ static const struct { const char *word; sh_fig_kind kind; } plot_kinds[] = {
 };
 
 /* The last forecast, when it belongs to the current model; else NULL. */
-static const fit_forecast *current_forecast(const sh_session *s)
+static const fit_forecast *current_forecast(sh_session *s)
 {
     if (!s->last_forecast || s->current < 0 || s->current >= s->nmodels)
         return NULL;
-    if (s->models[s->current].id != s->last_forecast_model || s->models[s->current].fit.n != s->n)
+    if (s->models[s->current].id != s->last_forecast_model || !sh_figure_model_on_series(s, &s->models[s->current]))
         return NULL;
     return (const fit_forecast *)s->last_forecast;
 }

@@ -20,6 +20,12 @@ const char *sh_fig_name(sh_fig_kind kind)
     return kind >= 0 && kind < SH_FIG_NKINDS ? names[kind] : "?";
 }
 
+int sh_figure_model_on_series(const sh_session *s, const sh_model *m)
+{
+    char now[512];
+    return m->fit.n == s->n && !strcmp(m->series, sh_series_label(s, now, sizeof now));
+}
+
 void sh_figure_free(sh_figure *f)
 {
     for (int i = 0; i < SH_FIG_BUFS; i++)
@@ -112,7 +118,7 @@ int sh_figure_build(sh_session *s, sh_fig_kind kind, int of_series, const fit_fo
         m = &s->models[s->current];
     /* A model fitted to another working series (before a transform) does not
      * belong on these charts. */
-    if (m && m->fit.n != s->n)
+    if (m && !sh_figure_model_on_series(s, m))
         m = NULL;
     int needs_model = kind == SH_FIG_FIT || kind == SH_FIG_RESID || kind == SH_FIG_QQ ||
                       kind == SH_FIG_PROFILE || kind == SH_FIG_FAN ||

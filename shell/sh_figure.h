@@ -48,6 +48,10 @@ const char *sh_fig_name(sh_fig_kind kind);
 int sh_figure_build(sh_session *s, sh_fig_kind kind, int of_series, const fit_forecast *fc,
                     sh_figure *f, char *err, size_t errlen);
 
+/* 1 when model M was fitted to the working series S holds now (same length,
+ * file, column and transforms), else 0. */
+int sh_figure_model_on_series(const sh_session *s, const sh_model *m);
+
 /* Release the arrays of F (the chart becomes empty). */
 void sh_figure_free(sh_figure *f);
 

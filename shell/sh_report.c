@@ -727,7 +727,8 @@ int sh_report_write(sh_session *s, const char *path, int pdf, int h, sh_report_i
         return -1;
     }
     sh_model *cur = s->current >= 0 && s->current < s->nmodels ? &s->models[s->current] : NULL;
-    if (cur && cur->fit.n == s->n && !cur->checked) {
+    int model_ok = cur && sh_figure_model_on_series(s, cur);
+    if (model_ok && !cur->checked) {
         diag_options o = sh_check_options(s, cur);
         sh_check_model(s, cur, &o);        /* a failed check leaves it unchecked; the report says so */
     }
@@ -735,7 +736,7 @@ int sh_report_write(sh_session *s, const char *path, int pdf, int h, sh_report_i
     /* the forecast for the fan */
     fit_forecast *own = NULL;
     const fit_forecast *fc = NULL;
-    if (cur && cur->fit.n == s->n) {
+    if (model_ok) {
         if (h > 0) {
             own = fit_forecast_alloc(h);
             if (own && fit_forecast_run(&cur->fit, s->y, s->n, s->level / 100.0, own) == HN_OK)
@@ -751,13 +752,18 @@ int sh_report_write(sh_session *s, const char *path, int pdf, int h, sh_report_i
     for (int k = 0; k < SH_FIG_NKINDS; k++) {
         if (sh_figure_build(s, (sh_fig_kind)k, 0, fc, &F.fig[k], why, sizeof why) == 0) {
             F.have[k] = 1;
-        } else if (k != SH_FIG_SERIES) {
-            size_t l = strlen(info->skipped);
-            if (!(k == SH_FIG_FAN && !cur))
-                snprintf(info->skipped + l, sizeof info->skipped - l, "%s%s (%s)", l ? "; " : "",
-                         sh_fig_name((sh_fig_kind)k), k == SH_FIG_FAN && cur ? "no forecast: run 'forecast H' or give h=H" : why);
+            continue;
         }
+        if (k == SH_FIG_SERIES || !model_ok)
+            continue;                       /* said once below */
+        size_t l = strlen(info->skipped);
+        snprintf(info->skipped + l, sizeof info->skipped - l, "%s%s (%.150s)", l ? "; " : "",
+                 sh_fig_name((sh_fig_kind)k), k == SH_FIG_FAN ? "no forecast: run 'forecast H' or give h=H" : why);
     }
+    if (!model_ok)
+        snprintf(info->skipped, sizeof info->skipped, "%s",
+                 cur ? "the charts of residuals and forecasts: the current model was fitted to another working series"
+                     : "the charts of residuals and forecasts: no model fitted");
     for (size_t k = 0; k < NORDER; k++)
         info->charts += F.have[ORDER[k]];
     if (F.have[SH_FIG_SERIES] && !F.have[SH_FIG_FIT])
