@@ -3,7 +3,7 @@
 set -e
 PKGS="build-essential pkg-config libgsl-dev liblapacke-dev libreadline-dev libcsv-dev
       libssl-dev libcairo2-dev libcmocka-dev clang libclang-rt-14-dev python3-numpy python3-scipy chromium poppler-utils
-      parallel"
+      parallel tmux valgrind"
 missing=""
 for p in $PKGS; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing="$missing $p"
