@@ -51,17 +51,17 @@ int fit_arma_hessian(fit_arma_ws *w, const double *y, size_t n, const double *mp
  *   pure AR (or arma(0,0)): least squares of y_t on (1, y_{t-l_i}) over
  *     t = p .. n-1, which is the conditional LS optimum itself, with
  *     mu = intercept / (1 - sum ar) (the sample mean when sum ar is 1);
- *     by QR (LAPACKE_dgels) up to 10000 rows, beyond that by the normal
+ *     by QR (LAPACKE_dgels) up to 20000 rows, beyond that by the normal
  *     equations (LAPACKE_dposv), cheaper on a long series;
  *   with MA terms: a long autoregression of order m (m = max(2 max(p, q),
  *     min(ceil(10 log10 n), 30)), at most 400) by least squares
  *     (LAPACKE_dgels) gives residuals ehat; then y_t is regressed on
- *     (1, y_{t-l_i}, ehat_{t-m_j}).  For n > 10000 both regressions use the
- *     last 10000 observations only (the optimiser then finishes on the
+ *     (1, y_{t-l_i}, ehat_{t-m_j}).  For n > 20000 both regressions use the
+ *     last 20000 observations only (the optimiser then finishes on the
  *     whole series).
  * MA coefficients are shrunk towards zero when the start is non-invertible,
- * so the residual recursion stays bounded.  Least squares by LAPACKE_dgels;
- * a degenerate design falls back to zero coefficients at the sample mean.
+ * so the residual recursion stays bounded.  A degenerate design falls back
+ * to zero coefficients at the sample mean.
  * Returns HN_OK, HN_EINVAL, HN_ESHORT, HN_ENOMEM. */
 int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar);
 
@@ -71,12 +71,16 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
  * criteria with k = np + 1, roots, residuals and warnings.
  * Method: the series is standardised (z = (y - mean)/sd, or y/rms without a
  * mean) so that tolerances do not depend on its units; Hannan-Rissanen
- * start; BFGS2 (fit_optim_minimise) on the per-observation objective
- * f = -loglik/N in coordinates preconditioned by the Cholesky factor of the
- * Hessian at the start; opt->grad_tol applies to the gradient in those
- * coordinates.  res->grad_norm is the 2-norm of the gradient of f in the
- * standardised parameters at the optimum.  Input checks (length, constant
- * series) are the caller's (fit_model).  Returns as fit_model. */
+ * start; up to 8 Gauss-Newton steps on the per-observation objective
+ * f = -loglik/N, each kept only when f does not rise; then BFGS2
+ * (fit_optim_minimise) in coordinates preconditioned by the Cholesky factor
+ * of the Gauss-Newton matrix J'J/SSR, in up to four rounds each
+ * preconditioned afresh.  opt->grad_tol applies to the gradient in those
+ * coordinates (the decrement sqrt(g' M^-1 g)); iterations and evaluations
+ * count the Gauss-Newton steps and passes too.  res->grad_norm is the
+ * 2-norm of the gradient of f in the standardised parameters at the
+ * optimum.  Input checks (length, constant series) are the caller's
+ * (fit_model).  Returns as fit_model. */
 int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
                       const fit_options *opt, fit_result *res);
 
