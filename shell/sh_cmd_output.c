@@ -72,7 +72,8 @@ static int cmd_plot(sh_session *s, sh_words *w)
         sh_figure_free(&f);
         return sh_fail(s, kind == SH_FIG_FAN ? -1 : ki, "%s", err);
     }
-    unsigned flags = (s->utf8 ? 0u : SH_TC_ASCII) | (s->color ? SH_TC_COLOR : 0u);
+    /* A journal is read as plain text, so recorded charts carry no colour. */
+    unsigned flags = (s->utf8 ? 0u : SH_TC_ASCII) | (s->color && !s->journal ? SH_TC_COLOR : 0u);
     char *text = NULL;
     size_t len = 0;
     int rc = sh_tchart_string(&f.chart, (int)width, (int)height, flags, &text, &len);
@@ -323,7 +324,7 @@ const sh_command sh_cmds_output[] = {
       "  for GARCH) or, with of=series or without a model, the working series.\n"
       "  width= defaults to the terminal's (set width), height= to 18 lines.\n"
       "  Unicode blocks on a UTF-8 terminal, ASCII otherwise; colour only on a\n"
-      "  terminal and when NO_COLOR is not set.\n" },
+      "  terminal, when NO_COLOR is not set and the session is not recording.\n" },
     { "save", "save resid|forecast FILE.csv [H]", "write residuals or forecasts as CSV",
       { NULL }, 2, 3, cmd_save,
       "  save resid FILE.csv      time (when the data had a time column), obs,\n"
