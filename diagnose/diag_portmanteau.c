@@ -228,6 +228,83 @@ static size_t smooth_length(size_t m)
     }
 }
 
+/* |X_j|^2 for j = 1..q (q < n/2) of the DFT of the real D of even length
+ * n = 2m, from one complex DFT of half the length: with z_t = d_{2t} +
+ * i d_{2t+1} and Z its length-m DFT, the even and odd samples have the
+ * transforms E_j = (Z_j + conj Z_{m-j})/2 and O_j = (Z_j - conj Z_{m-j})/(2i),
+ * and X_j = E_j + exp(-2 pi i j/n) O_j.  Z comes from the chirp-z identity
+ * (as in periodogram below) on a 2-3-5-7-smooth length L >= 2m - 1, this
+ * time with the outer chirp applied, since Z_j and Z_{m-j} are combined.
+ * Half the transform length of the direct route.  HN_OK, HN_ENOMEM or
+ * HN_ENUMERIC. */
+static int periodogram_even(const double *d, size_t n, size_t q, double *I)
+{
+    size_t m = n / 2, L = smooth_length(2 * m - 1);
+    double *a = calloc(2 * L, sizeof *a), *b = calloc(2 * L, sizeof *b);
+    gsl_fft_complex_wavetable *wt = gsl_fft_complex_wavetable_alloc(L);
+    gsl_fft_complex_workspace *ws = gsl_fft_complex_workspace_alloc(L);
+    int rc = HN_OK;
+    if (!a || !b || !wt || !ws) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    unsigned long long two_m = 2ULL * (unsigned long long)m;
+    for (size_t t = 0; t < m; t++) {
+        /* chirp exp(-i pi t^2 / m), with t^2 reduced mod 2m first */
+        unsigned long long tt = ((unsigned long long)t * (unsigned long long)t) % two_m;
+        double th = M_PI * (double)tt / (double)m;
+        double c = cos(th), sn = sin(th), zr = d[2 * t], zi = d[2 * t + 1];
+        a[2 * t] = zr * c + zi * sn;
+        a[2 * t + 1] = zi * c - zr * sn;
+        b[2 * t] = c;
+        b[2 * t + 1] = sn;
+        if (t > 0) {
+            b[2 * (L - t)] = c;
+            b[2 * (L - t) + 1] = sn;
+        }
+    }
+    if (gsl_fft_complex_forward(a, 1, L, wt, ws) != 0 || gsl_fft_complex_forward(b, 1, L, wt, ws) != 0) {
+        rc = HN_ENUMERIC;
+        goto done;
+    }
+    for (size_t k = 0; k < L; k++) {
+        double re = a[2 * k] * b[2 * k] - a[2 * k + 1] * b[2 * k + 1];
+        double im = a[2 * k] * b[2 * k + 1] + a[2 * k + 1] * b[2 * k];
+        a[2 * k] = re;
+        a[2 * k + 1] = im;
+    }
+    if (gsl_fft_complex_inverse(a, 1, L, wt, ws) != 0) {
+        rc = HN_ENUMERIC;
+        goto done;
+    }
+    /* Z_k = exp(-i pi k^2 / m) * convolution_k, for k = 0..m-1, in place */
+    for (size_t k = 0; k < m; k++) {
+        unsigned long long kk = ((unsigned long long)k * (unsigned long long)k) % two_m;
+        double th = M_PI * (double)kk / (double)m;
+        double c = cos(th), sn = sin(th), re = a[2 * k], im = a[2 * k + 1];
+        a[2 * k] = re * c + im * sn;
+        a[2 * k + 1] = im * c - re * sn;
+    }
+    for (size_t j = 1; j <= q; j++) {
+        double zr = a[2 * j], zi = a[2 * j + 1];
+        double cr = a[2 * (m - j)], ci = -a[2 * (m - j) + 1];     /* conj Z_{m-j} */
+        double er = 0.5 * (zr + cr), ei = 0.5 * (zi + ci);
+        double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
+        double th = 2.0 * M_PI * (double)j / (double)n;
+        double c = cos(th), sn = -sin(th);
+        double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
+        I[j - 1] = xr * xr + xi * xi;
+    }
+done:
+    free(a);
+    free(b);
+    if (wt)
+        gsl_fft_complex_wavetable_free(wt);
+    if (ws)
+        gsl_fft_complex_workspace_free(ws);
+    return rc;
+}
+
 /* |X_j|^2 for j = 1..q of the DFT X_j = sum_t d_t exp(-2 pi i j t / n),
  * into I[0..q-1].  D is overwritten.  Lengths whose prime factors are all
  * small go through GSL's mixed-radix real FFT; others (GSL's general-factor
@@ -257,6 +334,8 @@ static int periodogram(double *d, size_t n, size_t q, double *I)
             gsl_fft_real_workspace_free(ws);
         return rc;
     }
+    if (n % 2 == 0 && q < n / 2)
+        return periodogram_even(d, n, q, I);
     size_t L = smooth_length(2 * n - 1);
     double *a = calloc(2 * L, sizeof *a), *b = calloc(2 * L, sizeof *b);
     gsl_fft_complex_wavetable *wt = gsl_fft_complex_wavetable_alloc(L);

@@ -1,0 +1,171 @@
+/* test_fastpaths.c - the battery's fast routes against their definitions and a general-purpose least-squares solver. */
+#include "testutil.h"
+#include "diag_checks.h"
+#include "hn_status.h"
+
+#include <gsl/gsl_multifit.h>
+#include <gsl/gsl_randist.h>
+#include <gsl/gsl_rng.h>
+
+static int cmp_double(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* The even-length periodogram route (half-length complex transform, used
+ * when n is even and has a prime factor above 97) against the defining sum
+ * I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 evaluated term by term (angles
+ * reduced mod n), through the Kolmogorov-Smirnov distance of the cumulative
+ * periodogram (Bartlett's statistic; the definition, common practice).
+ * Lengths 2 x 1009, 4 x 251 and 2 x 4099; Gaussian data from GSL mt19937
+ * seed 47 with a period-7 bump so that the distance is not tiny. */
+static void test_periodogram_even_route(void **state)
+{
+    (void)state;
+    const size_t ns[3] = { 2018, 1004, 8198 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 47UL);
+    for (int s = 0; s < 3; s++) {
+        size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
+        double *x = malloc(n * sizeof *x), *I = malloc(q * sizeof *I);
+        assert_non_null(x);
+        assert_non_null(I);
+        double mean = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            x[t] = gsl_ran_gaussian(r, 1.0) + (t % 7 == 0 ? 0.5 : 0.0);
+            mean += x[t];
+        }
+        mean /= (double)n;
+        double total = 0.0;
+        for (size_t j = 1; j <= q; j++) {
+            double re = 0.0, im = 0.0;
+            for (size_t t = 0; t < n; t++) {
+                double th = 2.0 * M_PI * (double)((j * t) % n) / (double)n;
+                re += (x[t] - mean) * cos(th);
+                im -= (x[t] - mean) * sin(th);
+            }
+            I[j - 1] = re * re + im * im;
+            total += I[j - 1];
+        }
+        double cum = 0.0, D = 0.0;
+        for (size_t j = 1; j <= M; j++) {
+            cum += I[j - 1];
+            double c = cum / total;
+            D = fmax(D, fmax((double)j / (double)M - c, c - (double)(j - 1) / (double)M));
+        }
+        diag_test t;
+        assert_int_equal(diag_cum_periodogram(x, n, 0.05, &t), HN_OK);
+        TU_NEAR(t.statistic, D, 1e-10);
+        free(x);
+        free(I);
+    }
+    gsl_rng_free(r);
+}
+
+/* The runs test's median (found by selection) against the median of a full
+ * sort, through the number of runs about it (Wald-Wolfowitz: values equal to
+ * the median dropped, runs of the signs of the rest; the definition, common
+ * practice).  Data rounded to one decimal so that ties and values equal to
+ * the median occur; odd and even lengths. */
+static void test_runs_median_by_selection(void **state)
+{
+    (void)state;
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 5UL);
+    const size_t ns[4] = { 101, 100, 2001, 5000 };
+    for (int s = 0; s < 4; s++) {
+        size_t n = ns[s];
+        double *x = malloc(n * sizeof *x), *c = malloc(n * sizeof *c);
+        assert_non_null(x);
+        assert_non_null(c);
+        for (size_t i = 0; i < n; i++)
+            x[i] = c[i] = round(10.0 * gsl_ran_gaussian(r, 1.0)) / 10.0;
+        qsort(c, n, sizeof *c, cmp_double);
+        double med = n % 2 ? c[n / 2] : 0.5 * (c[n / 2 - 1] + c[n / 2]);
+        size_t runs = 0;
+        int prev = 0;
+        for (size_t i = 0; i < n; i++) {
+            int sign = x[i] > med ? 1 : x[i] < med ? -1 : 0;
+            if (sign == 0)
+                continue;
+            if (sign != prev)
+                runs++;
+            prev = sign;
+        }
+        diag_test t;
+        assert_int_equal(diag_runs_test(x, n, 0.05, &t), HN_OK);
+        char want[64];
+        snprintf(want, sizeof want, "%zu runs about the median %.6g ", runs, med);
+        if (strncmp(t.detail, want, strlen(want)) != 0)
+            fail_msg("n = %zu: detail '%s', want it to start '%s'", n, t.detail, want);
+        free(x);
+        free(c);
+    }
+    gsl_rng_free(r);
+}
+
+/* ARCH-LM's R^2 (centred normal equations with one refinement step) against
+ * GSL 2.7.1's gsl_multifit_linear (an SVD least-squares solver) on the same
+ * regression of x_t^2 on a constant and 5 of its lags, for GARCH(1,1) data
+ * with strong clustering (omega 0.05, alpha 0.15, beta 0.8; GSL mt19937
+ * seed 11), n = 20000 and 2000. */
+static void test_arch_lm_against_svd(void **state)
+{
+    (void)state;
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 11UL);
+    const size_t ns[2] = { 20000, 2000 };
+    const size_t q = 5;
+    for (int s = 0; s < 2; s++) {
+        size_t n = ns[s], rows = n - q;
+        double *x = malloc(n * sizeof *x);
+        assert_non_null(x);
+        double h = 1.0, e = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            h = 0.05 + 0.15 * e * e + 0.8 * h;
+            e = sqrt(h) * gsl_ran_gaussian(r, 1.0);
+            x[t] = e;
+        }
+        gsl_matrix *X = gsl_matrix_alloc(rows, q + 1);
+        gsl_vector *y = gsl_vector_alloc(rows), *b = gsl_vector_alloc(q + 1);
+        gsl_matrix *cov = gsl_matrix_alloc(q + 1, q + 1);
+        gsl_multifit_linear_workspace *w = gsl_multifit_linear_alloc(rows, q + 1);
+        for (size_t i = 0; i < rows; i++) {
+            size_t t = i + q;
+            gsl_vector_set(y, i, x[t] * x[t]);
+            gsl_matrix_set(X, i, 0, 1.0);
+            for (size_t j = 1; j <= q; j++)
+                gsl_matrix_set(X, i, j, x[t - j] * x[t - j]);
+        }
+        double chisq, ym = 0.0, sst = 0.0;
+        assert_int_equal(gsl_multifit_linear(X, y, b, cov, &chisq, w), 0);
+        for (size_t i = 0; i < rows; i++)
+            ym += gsl_vector_get(y, i);
+        ym /= (double)rows;
+        for (size_t i = 0; i < rows; i++)
+            sst += (gsl_vector_get(y, i) - ym) * (gsl_vector_get(y, i) - ym);
+        double r2 = 1.0 - chisq / sst;
+        diag_test t;
+        assert_int_equal(diag_arch_lm(x, n, (int)q, 0.05, &t), HN_OK);
+        if (!(tu_lre(t.effect, r2) >= 9.0) || !(tu_lre(t.statistic, (double)rows * r2) >= 9.0))
+            fail_msg("n = %zu: R^2 %.17g, SVD %.17g; statistic %.17g", n, t.effect, r2, t.statistic);
+        gsl_multifit_linear_free(w);
+        gsl_matrix_free(X);
+        gsl_matrix_free(cov);
+        gsl_vector_free(y);
+        gsl_vector_free(b);
+        free(x);
+    }
+    gsl_rng_free(r);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_periodogram_even_route),
+        cmocka_unit_test(test_runs_median_by_selection),
+        cmocka_unit_test(test_arch_lm_against_svd),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
