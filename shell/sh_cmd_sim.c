@@ -3,6 +3,7 @@
 #include "sh_handlers.h"
 #include "sh_file.h"
 #include "sh_time.h"
+#include "sh_csv.h"
 #include "fit_sim.h"
 #include "hn_status.h"
 
@@ -75,8 +76,10 @@ static int cmd_simulate(sh_session *s, sh_words *w)
         return sh_fail(s, sh_arg(w, 0), "model '%s': %s (at character %d)", text, err, pos + 1);
     long n = 0, seed = 0, burn = 500;
     const char *v;
-    if (!(v = sh_words_value(w, "n")) || sh_parse_long(v, &n) || n < 2 || n > 100000000L)
-        return sh_fail(s, sh_words_option(w, "n"), "simulate needs n=N, a whole number from 2 to 100000000");
+    /* no longer than the longest series load accepts (the memory limit in docs/reliability.md) */
+    if (!(v = sh_words_value(w, "n")) || sh_parse_long(v, &n) || n < 2 || n > (long)SH_CSV_DEFAULT_MAX_ROWS)
+        return sh_fail(s, sh_words_option(w, "n"), "simulate needs n=N, a whole number from 2 to %lu",
+                       (unsigned long)SH_CSV_DEFAULT_MAX_ROWS);
     if (!(v = sh_words_value(w, "seed")) || sh_parse_long(v, &seed) || seed < 0)
         return sh_fail(s, sh_words_option(w, "seed"), "simulate needs seed=S, a non-negative whole number (it is recorded)");
     if ((v = sh_words_value(w, "burn")) && (sh_parse_long(v, &burn) || burn < 0 || burn > 10000000L))
@@ -117,6 +120,16 @@ static int cmd_simulate(sh_session *s, sh_words *w)
     if (!column)
         column = "value";
     if (file) {
+        /* the file must load back: its last time stamp has to be one load reads */
+        char last[40];
+        int64_t back;
+        int back_kind;
+        sh_time_format(sh_time_advance(stamp, freq, n - 1), kind, last, sizeof last);
+        if (sh_time_parse(last, strlen(last), 1, &back, &back_kind, err, sizeof err)) {
+            free(y);
+            return sh_fail(s, sh_words_option(w, "n"), "the last time stamp would be %s, beyond what load "
+                           "reads (years up to 9999); choose an earlier start= or fewer values", last);
+        }
         sh_outfile o;
         if (sh_outfile_open(&o, file, err, sizeof err)) {
             free(y);

@@ -45,7 +45,7 @@ rm -f "$tmp/out.txt"
 cp "$tmp/existing.csv" "$tmp/orig.csv"
 
 # Killed while writing a large file: old or new, never a part.
-( cd "$tmp" && exec "$HONE" -c "simulate ar(1) n=3000000 seed=2 set=mu:0,ar1:0.5,sigma2:1 file=existing.csv" ) >/dev/null 2>&1 &
+( cd "$tmp" && exec "$HONE" -c "simulate ar(1) n=3000000 seed=2 set=mu:0,ar1:0.5,sigma2:1 freq=hourly file=existing.csv" ) >/dev/null 2>&1 &
 pid=$!
 i=0
 # kill as soon as writing has begun: bytes in a temporary file, or the

@@ -71,6 +71,11 @@ done <<EOF
 1|-c:1: error: unterminated quote|-c 'fit "ar(1)'
 1|cannot simulate ar(1): value outside its domain|-c "simulate ar(1) n=10 seed=1 set=mu:0,ar1:0.5,sigma2:-1"
 1|the path exploded: is the AR part stationary?|-c "simulate ar(1) n=2000 seed=1 set=mu:0,ar1:1.5,sigma2:1"
+1|simulate needs n=N, a whole number from 2 to 10000000|-c "simulate ar(1) n=20000000 seed=1 set=mu:0,ar1:0.5,sigma2:1"
+1|the last time stamp would be 10000-12-13, beyond what load reads (years up to 9999)|-c "simulate ar(1) n=4000 seed=1 set=mu:0,ar1:0.5,sigma2:1 start=9990-01-01 file=$tmp/late.csv"
+1|the horizon must be a whole number of steps from 1 to 10000|-c "load tests/data/wn200.csv; fit ar(1); forecast 100000000"
+1|lags= takes a whole number from 1 to 400|-c "load tests/data/wn200.csv; fit ar(1); check lags=1000000000"
+0|not computed: needs at least 2 blocks|-c "load tests/data/wn200.csv; fit ar(1); check window=1000000000"
 1|cannot read journal tests/data/bad/nope.journal: No such file or directory|-c "replay $B/nope.journal"
 0|is incomplete: the recording ended while writing it, so it was not replayed|-c "replay $B/truncated.journal verify"
 # --- command files ----------------------------------------------------------
