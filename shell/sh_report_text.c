@@ -283,12 +283,45 @@ void sh_text_check(sh_session *s, const sh_model *m)
                                                       : "not normal (information only)")
                                    : (b->crit_pass[c] ? "pass" : "FAIL"));
     }
+    /* The portmanteau profile: one m must not decide alone. */
+    if (b->profile_p && b->acf_lags > 0) {
+        char line[4096];
+        size_t at = 0;
+        int first_sig = 0, shown = 0;
+        line[0] = '\0';
+        for (int k = 0; k < b->acf_lags; k++) {
+            double pk = b->profile_p[k];
+            if (!isfinite(pk))
+                continue;
+            if (!first_sig && pk < b->alpha)
+                first_sig = k + 1;
+            if (at < sizeof line)
+                at += (size_t)snprintf(line + at, sizeof line - at, "%s%d:%s", shown++ ? "  " : "", k + 1,
+                                       sh_pval(p, sizeof p, pk));
+        }
+        if (shown) {
+            sh_printf(s, "\n  Ljung-Box p-value at each m (profile; df = m - %d):\n    ", m->bopt.df_adjust);
+            wrap(s, line, 4);
+            if (first_sig)
+                sh_printf(s, "    first significant at m = %d (alpha %g, each m on its own)\n", first_sig, b->alpha);
+            else
+                sh_printf(s, "    no m up to %d is significant at alpha %g\n", b->acf_lags, b->alpha);
+        }
+    }
+
     sh_printf(s, "\n  verdict: %s\n", b->white ? "WHITE NOISE - nothing predictable found in the residuals"
                                                : "NOT WHITE NOISE");
     if (b->summary[0]) {
         sh_printf(s, "  ");
         wrap(s, b->summary, 2);
     }
+    sh_printf(s, "  ");
+    wrap(s, b->white ? "Reading: no criterion found evidence against white noise at the family-wise level. "
+                       "That is absence of evidence, not proof: short series have little power, and the checks "
+                       "say nothing about how well the model will forecast."
+                     : "Reading: a small p-value is evidence that the residuals still hold structure of that kind; "
+                       "a criterion that passes only means no such evidence was found. At large n even tiny "
+                       "effects become significant: compare the size column before acting.", 2);
 }
 
 void sh_json_check(sh_session *s, const sh_model *m)
