@@ -618,10 +618,16 @@ static int write_pdf(const char *tmp, sh_session *s, figures *F, const provenanc
         fit_spec_format(&m->fit.spec, spec, sizeof spec);
         origin_words(m, org, sizeof org);
         verdict_words(m, ver, sizeof ver);
-        snprintf(buf, sizeof buf, "%s%d  %s  -  loglik %s, AICc %s, BIC %s, N %zu  -  %s  -  %s", i == s->current ? "* " : "",
-                 m->id, spec, sh_num(a, sizeof a, m->fit.loglik, 9), sh_num(b, sizeof b, m->fit.aicc, 8),
-                 sh_num(c, sizeof c, m->fit.bic, 8), m->fit.n_eff, ver, org);
+        snprintf(buf, sizeof buf, "%s%d  %s:  %s", i == s->current ? "* " : "", m->id, spec, ver);
         pdf_text(&p, buf, 9, i == s->current, 0, 0.12, 0.14, 0.16);
+        snprintf(buf, sizeof buf, "loglik %s, AICc %s, BIC %s, N %zu;  origin: %s", sh_num(a, sizeof a, m->fit.loglik, 9),
+                 sh_num(b, sizeof b, m->fit.aicc, 8), sh_num(c, sizeof c, m->fit.bic, 8), m->fit.n_eff, org);
+        p.x = MARGIN + 14;
+        p.maxw = PAGE_W - 2 * MARGIN - 14;
+        pdf_text(&p, buf, 7.5, 0, 0, 0.29, 0.33, 0.38);
+        p.x = 0;
+        p.maxw = 0;
+        p.y += 2;
     }
     if (s->nmodels)
         pdf_text(&p, "* the current (final) model; criteria compare only models fitted to the same working series.", 7.5,
