@@ -342,14 +342,20 @@ static int cmd_replay(sh_session *s, sh_words *w)
             }
         if (input_bad)
             break;
-        char cmd[4096], where[1100];
-        sh_jdoc_span(&d, en->cmd_off, en->cmd_len, cmd, sizeof cmd);
+        char where[1100];
+        char *cmd = malloc(en->cmd_len + 1);
+        if (!cmd) {
+            stopped = 1;
+            break;
+        }
+        sh_jdoc_span(&d, en->cmd_off, en->cmd_len, cmd, en->cmd_len + 1);
         snprintf(where, sizeof where, "%s:%ld", path, en->line);
         if (!verify && !s->json) {
             printf("> %s\n", cmd);
             fflush(stdout);
         }
         sh_exec_line(&t, cmd, where);
+        free(cmd);
         ran++;
         size_t glen = 0;
         const char *got = sh_journal_last(t.journal, &glen);
