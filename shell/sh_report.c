@@ -8,6 +8,7 @@
 #include "sh_journal.h"
 #include "sh_notes.h"
 #include "sh_report_text.h"
+#include "diag_stats.h"
 #include "fit_forecast.h"
 #include "hn_status.h"
 
@@ -201,7 +202,25 @@ typedef struct {
     char sha[65];
     long long bytes;
     int have_sha;
+    int have_summary;                   /* the working series' moments below */
+    char mean[32], sd[32], min[32], max[32];
 } provenance;
+
+static void summarise(const sh_session *s, provenance *pv)
+{
+    double mean, sd, lo = INFINITY, hi = -INFINITY;
+    if (s->n < 2 || diag_mean_sd(s->y, s->n, &mean, &sd) != HN_OK)
+        return;
+    for (size_t i = 0; i < s->n; i++) {
+        if (s->y[i] < lo) lo = s->y[i];
+        if (s->y[i] > hi) hi = s->y[i];
+    }
+    sh_num(pv->mean, sizeof pv->mean, mean, 6);
+    sh_num(pv->sd, sizeof pv->sd, sd, 6);
+    sh_num(pv->min, sizeof pv->min, lo, 6);
+    sh_num(pv->max, sizeof pv->max, hi, 6);
+    pv->have_summary = 1;
+}
 
 static int write_html(FILE *f, sh_session *s, figures *F, const provenance *pv, char *err, size_t errlen)
 {
@@ -232,7 +251,10 @@ static int write_html(FILE *f, sh_session *s, figures *F, const provenance *pv, 
                 s->season ? (snprintf(buf, sizeof buf, ", seasonal period %d", s->season), buf) : "");
     fputs("<dt>transforms</dt><dd>", f);
     esc(f, *s->transforms ? s->transforms : "none");
-    fprintf(f, "</dd>\n<dt>working series</dt><dd>%zu values</dd>\n", s->n);
+    fprintf(f, "</dd>\n<dt>working series</dt><dd>%zu values", s->n);
+    if (pv->have_summary)
+        fprintf(f, "; mean %s, sd %s (divisor n-1), min %s, max %s", pv->mean, pv->sd, pv->min, pv->max);
+    fputs("</dd>\n", f);
     if (pv->have_sha)
         fprintf(f, "<dt>file SHA-256</dt><dd><code>%s</code> (%lld bytes, at the time of this report)</dd>\n", pv->sha,
                 pv->bytes);
@@ -588,6 +610,11 @@ static int write_pdf(const char *tmp, sh_session *s, figures *F, const provenanc
              s->path, *s->column ? s->column : "-", s->n_raw, *s->freq ? ", " : "", s->freq,
              *s->transforms ? s->transforms : "none", s->n);
     pdf_body(&p, buf);
+    if (pv->have_summary) {
+        snprintf(buf, sizeof buf, "working series: mean %s, sd %s (divisor n-1), min %s, max %s", pv->mean, pv->sd,
+                 pv->min, pv->max);
+        pdf_body(&p, buf);
+    }
     if (pv->have_sha) {
         snprintf(buf, sizeof buf, "file SHA-256 %s (%lld bytes, at the time of this report)", pv->sha, pv->bytes);
         pdf_text(&p, buf, 7.5, 0, 1, 0.12, 0.14, 0.16);
@@ -783,6 +810,7 @@ int sh_report_write(sh_session *s, const char *path, int pdf, int h, sh_report_i
     strftime(pv.when, sizeof pv.when, "%Y-%m-%d %H:%M UTC", &tmv);
     if (s->path[0] != '(' && sh_sha256_file(s->path, pv.sha, &pv.bytes) == HN_OK)
         pv.have_sha = 1;
+    summarise(s, &pv);
 
     sh_outfile o;
     int rc = sh_outfile_open(&o, path, err, errlen);
