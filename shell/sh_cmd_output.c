@@ -3,9 +3,9 @@
 #include "sh_figure.h"
 #include "sh_tchart.h"
 #include "sh_file.h"
-#include "sh_csv.h"
 #include "sh_time.h"
 #include "sh_report.h"
+#include "sh_stamps.h"
 #include "fit_forecast.h"
 #include "hn_status.h"
 
@@ -94,46 +94,6 @@ static int cmd_plot(sh_session *s, sh_words *w)
 
 /* ---- save --------------------------------------------------------------- */
 
-typedef struct {
-    int64_t *stamp;          /* n_raw stamps, owned */
-    int kind, freq;
-} stamps_t;
-
-/* Time stamps of the loaded column: the session keeps only the values, so
- * the file is read again and its column accepted only when it gives exactly
- * the loaded values.  0 with *T filled, or -1 (no stamps). */
-static int load_stamps(const sh_session *s, stamps_t *t)
-{
-    memset(t, 0, sizeof *t);
-    if (!s->loaded || !*s->freq || s->path[0] == '(')
-        return -1;
-    static const sh_missing_policy pol[] = { SH_MISSING_REFUSE, SH_MISSING_PREVIOUS, SH_MISSING_INTERPOLATE,
-                                             SH_MISSING_DROP };
-    for (size_t p = 0; p < sizeof pol / sizeof pol[0]; p++) {
-        sh_csv_options o;
-        memset(&o, 0, sizeof o);
-        o.column = *s->column ? s->column : NULL;
-        o.missing = pol[p];
-        sh_data d;
-        sh_error e;
-        if (sh_csv_load(s->path, &o, &d, &e) != HN_OK) {
-            sh_data_free(&d);
-            continue;
-        }
-        int ok = d.has_time && d.stamp && d.n == s->n_raw && !memcmp(d.y, s->raw, d.n * sizeof *d.y);
-        if (ok) {
-            t->stamp = d.stamp;
-            d.stamp = NULL;
-            t->kind = d.time_kind;
-            t->freq = d.freq;
-        }
-        sh_data_free(&d);
-        if (ok)
-            return 0;
-    }
-    return -1;
-}
-
 static void put_num(FILE *f, double x)
 {
     if (isfinite(x))
@@ -146,8 +106,8 @@ static int save_resid(sh_session *s, const char *path, int pi)
     if (!m)
         return -1;
     const fit_result *r = &m->fit;
-    stamps_t st;
-    int have_time = load_stamps(s, &st) == 0;
+    sh_stamps st;
+    int have_time = sh_stamps_load(s, &st) == 0;
     size_t lost = s->n_raw - s->n;     /* values the transforms dropped at the front */
     sh_outfile o;
     char err[1200];
@@ -214,8 +174,8 @@ static int save_forecast(sh_session *s, sh_words *w, const char *path, int pi)
         if (!fc)
             return sh_fail(s, -1, "give the horizon (save forecast FILE.csv H) or run 'forecast H' on the current model first");
     }
-    stamps_t st;
-    int have_time = load_stamps(s, &st) == 0 && st.freq != SH_FREQ_NONE && st.freq != SH_FREQ_IRREGULAR;
+    sh_stamps st;
+    int have_time = sh_stamps_load(s, &st) == 0 && st.freq != SH_FREQ_NONE && st.freq != SH_FREQ_IRREGULAR;
     sh_outfile o;
     char err[1200];
     if (sh_outfile_open(&o, path, err, sizeof err)) {

@@ -9,6 +9,8 @@
 #include "sh_notes.h"
 #include "sh_report_text.h"
 #include "diag_stats.h"
+#include "sh_stamps.h"
+#include "sh_time.h"
 #include "fit_forecast.h"
 #include "hn_status.h"
 
@@ -204,6 +206,7 @@ typedef struct {
     int have_sha;
     int have_summary;                   /* the working series' moments below */
     char mean[32], sd[32], min[32], max[32];
+    char first[40], last[40];           /* time span of the loaded column, "" when unknown */
 } provenance;
 
 static void summarise(const sh_session *s, provenance *pv)
@@ -249,6 +252,8 @@ static int write_html(FILE *f, sh_session *s, figures *F, const provenance *pv, 
     if (*s->freq)
         fprintf(f, "<dt>frequency</dt><dd>%s%s</dd>\n", s->freq,
                 s->season ? (snprintf(buf, sizeof buf, ", seasonal period %d", s->season), buf) : "");
+    if (*pv->first)
+        fprintf(f, "<dt>period</dt><dd>%s to %s</dd>\n", pv->first, pv->last);
     fputs("<dt>transforms</dt><dd>", f);
     esc(f, *s->transforms ? s->transforms : "none");
     fprintf(f, "</dd>\n<dt>working series</dt><dd>%zu values", s->n);
@@ -610,6 +615,10 @@ static int write_pdf(const char *tmp, sh_session *s, figures *F, const provenanc
              s->path, *s->column ? s->column : "-", s->n_raw, *s->freq ? ", " : "", s->freq,
              *s->transforms ? s->transforms : "none", s->n);
     pdf_body(&p, buf);
+    if (*pv->first) {
+        snprintf(buf, sizeof buf, "period: %s to %s", pv->first, pv->last);
+        pdf_body(&p, buf);
+    }
     if (pv->have_summary) {
         snprintf(buf, sizeof buf, "working series: mean %s, sd %s (divisor n-1), min %s, max %s", pv->mean, pv->sd,
                  pv->min, pv->max);
@@ -811,6 +820,12 @@ int sh_report_write(sh_session *s, const char *path, int pdf, int h, sh_report_i
     if (s->path[0] != '(' && sh_sha256_file(s->path, pv.sha, &pv.bytes) == HN_OK)
         pv.have_sha = 1;
     summarise(s, &pv);
+    sh_stamps st;
+    if (sh_stamps_load(s, &st) == 0 && s->n_raw) {
+        sh_time_format(st.stamp[0], st.kind, pv.first, sizeof pv.first);
+        sh_time_format(st.stamp[s->n_raw - 1], st.kind, pv.last, sizeof pv.last);
+    }
+    free(st.stamp);
 
     sh_outfile o;
     int rc = sh_outfile_open(&o, path, err, errlen);
