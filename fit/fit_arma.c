@@ -410,6 +410,56 @@ static int ar_normal_equations(const fit_spec *spec, const double *ys, size_t nn
     return rc;
 }
 
+/* The long autoregression of Hannan-Rissanen: coefficients of ys_t - ctr on
+ * an intercept (OFF = 1) and lags 1..M of the centred series, t = M..nn-1,
+ * from the normal equations accumulated in blocks of 4096 rows (triangle
+ * only) and solved by Cholesky (LAPACKE_dposv).  About M/2 multiply-adds a
+ * row instead of a QR of the rows x (M+1) design: these are start values,
+ * which the optimiser refines, so the digits the normal equations can lose
+ * on an ill-conditioned design do not reach the estimates.  COEF (OFF + M).
+ * HN_OK, HN_ENOMEM, or HN_ESINGULAR when the matrix is not positive
+ * definite (the caller then uses the QR). */
+static int long_ar_normal(const double *ys, size_t nn, size_t M, double ctr, int off, double *coef)
+{
+    const size_t c = M + (size_t)off;
+    double *A = calloc(2 * c * c + 3 * c, sizeof *A);
+    if (!A)
+        return HN_ENOMEM;
+    double *Ab = A + c * c, *b = Ab + c * c, *bb = b + c, *x = bb + c;
+    for (size_t t0 = M; t0 < nn; t0 += 4096) {
+        size_t t1 = t0 + 4096 < nn ? t0 + 4096 : nn;
+        memset(Ab, 0, c * c * sizeof *Ab);
+        memset(bb, 0, c * sizeof *bb);
+        for (size_t t = t0; t < t1; t++) {
+            if (off)
+                x[0] = 1.0;
+            for (size_t k = 1; k <= M; k++)
+                x[(size_t)off + k - 1] = ys[t - k] - ctr;
+            const double yt = ys[t] - ctr;
+            for (size_t k = 0; k < c; k++) {
+                const double xk = x[k];
+                double *row = Ab + k * c;
+                bb[k] += xk * yt;
+                for (size_t l = 0; l <= k; l++)
+                    row[l] += xk * x[l];
+            }
+        }
+        for (size_t k = 0; k < c * c; k++)
+            A[k] += Ab[k];
+        for (size_t k = 0; k < c; k++)
+            b[k] += bb[k];
+    }
+    lapack_int info = LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', (lapack_int)c, 1, A, (lapack_int)c, b, 1);
+    int rc = info == 0 ? HN_OK : HN_ESINGULAR;
+    for (size_t k = 0; rc == HN_OK && k < c; k++)
+        if (!isfinite(b[k]))
+            rc = HN_ESINGULAR;
+    if (rc == HN_OK)
+        memcpy(coef, b, c * sizeof *coef);
+    free(A);
+    return rc;
+}
+
 int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar)
 {
     if (!spec || !y || (!mpar && fit_arma_nmean(spec) > 0))
@@ -464,23 +514,32 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
             goto done;
         }
         size_t rows = nn - m, cols = m + (size_t)off;
-        A = malloc(rows * cols * sizeof *A);
-        B = malloc(rows * sizeof *B);
+        B = malloc((rows > cols ? rows : cols) * sizeof *B);
         ehat = calloc(nn, sizeof *ehat);
-        if (!A || !B || !ehat) {
+        if (!B || !ehat) {
             rc = HN_ENOMEM;
             goto done;
         }
-        for (size_t t = m; t < nn; t++) {
-            double *a = A + (t - m) * cols;
-            if (off)
-                a[0] = 1.0;
-            for (size_t k = 1; k <= m; k++)
-                a[off + k - 1] = ys[t - k] - ctr;
-            B[t - m] = ys[t] - ctr;
-        }
-        if ((rc = lsq(A, B, rows, (int)cols)) != HN_OK)
+        rc = long_ar_normal(ys, nn, m, ctr, off, B);
+        if (rc == HN_ENOMEM)
             goto done;
+        if (rc != HN_OK) {      /* not positive definite: the QR of the design */
+            A = malloc(rows * cols * sizeof *A);
+            if (!A) {
+                rc = HN_ENOMEM;
+                goto done;
+            }
+            for (size_t t = m; t < nn; t++) {
+                double *a = A + (t - m) * cols;
+                if (off)
+                    a[0] = 1.0;
+                for (size_t k = 1; k <= m; k++)
+                    a[off + k - 1] = ys[t - k] - ctr;
+                B[t - m] = ys[t] - ctr;
+            }
+            if ((rc = lsq(A, B, rows, (int)cols)) != HN_OK)
+                goto done;
+        }
         for (size_t t = m; t < nn; t++) {
             double r = ys[t] - ctr - (off ? B[0] : 0.0);
             for (size_t k = 1; k <= m; k++)
