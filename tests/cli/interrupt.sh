@@ -12,10 +12,10 @@ trap 'T kill-server 2>/dev/null' EXIT
 
 screen() { T capture-pane -p -t "$sess" -S -300; }
 # wait_for TEXT SECONDS: poll the screen until TEXT appears.
-wait_for() {
+wait_for() {   # (text as a fixed string; wait_re takes an extended regex)
   i=0
   while [ $i -lt $(($2 * 10)) ]; do
-    screen | grep -qF -- "$1" && return 0
+    screen | grep -q${3:-F} -- "$1" && return 0
     sleep 0.1; i=$((i + 1))
   done
   echo "timed out waiting for: $1"; screen | tail -n 30; return 1
@@ -28,7 +28,8 @@ wait_for "hone>" 20 || exit 1
 T send-keys -t "$sess" "simulate ar(1)+garch(1,1) n=200000 seed=5 set=mu:0,ar1:0.3,omega:0.1,alpha1:0.1,beta1:0.85" Enter
 wait_for "working series: 200000 simulated values" 60 || exit 1
 T send-keys -t "$sess" "scan p=0..4 q=0..4 garch=yes" Enter
-sleep 2
+# the progress line (stderr is the terminal): interrupt once a model is done
+wait_for "scan: [0-9]+ of 25 models fitted" 300 E || exit 1
 T send-keys -t "$sess" C-c
 wait_for "(interrupted; back at the prompt)" 120 || exit 1
 screen | grep -qF "scan interrupted; the finished models are kept" || { echo "no interrupt message"; exit 1; }
@@ -40,6 +41,14 @@ kept=$(screen | grep -cE '^ +\*? +[0-9]+  [a-z]')
 # The kept models are in the session.
 T send-keys -t "$sess" "models" Enter
 wait_for "current model; criteria compare only" 20 || exit 1
+
+# A long single fit (tens of seconds): Ctrl-C stops it and adds no model.
+T send-keys -t "$sess" "fit arma(4,4)+garch(1,1) t" Enter
+sleep 1
+T send-keys -t "$sess" C-c
+wait_for "fit of arma(4,4)+garch(1,1) t interrupted; no model added" 120 || exit 1
+T send-keys -t "$sess" "use $((kept + 1))" Enter
+wait_for "no model $((kept + 1))" 20 || { echo "a model was added by the interrupted fit"; exit 1; }
 
 # Ctrl-C at an idle prompt: a fresh prompt, the session still answers.
 T send-keys -t "$sess" "abandoned half-typed line" C-c
