@@ -94,21 +94,21 @@ static const char *verdict_words(const sh_model *m, char *buf, size_t len)
         snprintf(buf, len, "white noise");
         return buf;
     }
-    snprintf(buf, len, "not white:");
+    snprintf(buf, len, "not white, fails:");
+    int k = 0;
     for (int c = 0; c < DIAG_NCRIT; c++)
         if (c != DIAG_NORMAL && !m->battery.crit_pass[c]) {
             size_t l = strlen(buf);
-            snprintf(buf + l, len - l, " %s;", diag_criterion_name((diag_criterion)c));
+            snprintf(buf + l, len - l, "%s %s", k++ ? "," : "", diag_criterion_id((diag_criterion)c));
         }
-    size_t l = strlen(buf);
-    if (l && buf[l - 1] == ';')
-        buf[l - 1] = '\0';
     return buf;
 }
 
 static void origin_words(const sh_model *m, char *buf, size_t len)
 {
-    if (m->parent)
+    char tag[32];
+    snprintf(tag, sizeof tag, "model %d", m->parent);
+    if (m->parent && !strstr(m->origin, tag))
         snprintf(buf, len, "from model %d: %s", m->parent, m->origin);
     else
         snprintf(buf, len, "%s", *m->origin ? m->origin : "-");
@@ -154,7 +154,7 @@ static const char CSS[] =
     "table{border-collapse:collapse;font-size:13.5px;margin:6px 0}"
     "th,td{padding:4px 10px;text-align:left;border-bottom:1px solid #ecebe6;vertical-align:top}"
     "th{background:#f0eee8;font-weight:600}"
-    "td.n{text-align:right;font-variant-numeric:tabular-nums;font-family:ui-monospace,Menlo,Consolas,monospace}"
+    "td.n{text-align:right;white-space:nowrap;font-variant-numeric:tabular-nums;font-family:ui-monospace,Menlo,Consolas,monospace}"
     "tr.cur td{background:#fbf6e4}td.m{white-space:nowrap}"
     ".white{color:#1d6b3a;font-weight:600}.notwhite{color:#a2312b;font-weight:600}"
     "pre{background:#f7f6f2;border:1px solid #ecebe6;padding:8px 10px;font-size:12px;line-height:1.35;"
