@@ -48,10 +48,11 @@ printf '%s\n' "$out"
 printf '%s\n' "$out" | grep -q "differs at command 1 of 15" || { echo "difference not placed at command 1"; exit 1; }
 printf '%s\n' "$out" | grep -q "journal line $line: *| loaded 731" || { echo "difference not at line $line"; exit 1; }
 
-# A plain replay leaves the session in the recorded state.
-out=$("$HONE" -c 'replay j.txt; models' 2>/dev/null)
+# A plain replay leaves the session in the recorded state, notes included.
+out=$("$HONE" -c 'replay j.txt; models; note' 2>/dev/null)
 printf '%s\n' "$out" | grep -q "every output matched the journal" || { echo "plain replay did not match"; exit 1; }
 printf '%s\n' "$out" | grep -q '^ \* *2  ar\[1,7\]' || { echo "replayed session lacks the current model 2"; exit 1; }
+printf '%s\n' "$out" | grep -q '^   1  (model 1)  the weekly lag is still in the residuals$' || { echo "replayed session lacks the note"; exit 1; }
 
 # record FILE / record off at the prompt: only the commands in between are kept.
 out=$("$HONE" -c 'record k.txt; record; load bakery-orders.csv; fit ar(2); record off; fit ar(3); replay k.txt verify' 2>&1) ||
