@@ -5,6 +5,7 @@
 
 #include <csv.h>
 #include <errno.h>
+#include <float.h>
 #include <locale.h>
 #include <math.h>
 #include <stdarg.h>
@@ -220,6 +221,30 @@ static num_result parse_number(const char *s, size_t len, double *v)
         *v = neg ? -x : x;
         return NUM_OK;
     }
+#if LDBL_MANT_DIG == 64 && (defined(__x86_64__) || defined(__i386__))
+    /* The same with x87 extended precision, for the 16 to 19 digits that
+     * printed doubles carry: the digits (below 10^19 < 2^64) and 10^k for
+     * k <= 27 (5^27 < 2^63) are exact in its 64-bit significand, so the
+     * product or quotient is one correctly rounded extended operation.
+     * Rounding that to double gives the correctly rounded double unless the
+     * extended result lies exactly half-way between two doubles (its low 11
+     * significand bits 10000000000); then strtod decides. */
+    if (!inexact && e10 >= -27 && e10 <= 27) {
+        static const long double q10[28] = {
+            1e0L,  1e1L,  1e2L,  1e3L,  1e4L,  1e5L,  1e6L,  1e7L,  1e8L,  1e9L,
+            1e10L, 1e11L, 1e12L, 1e13L, 1e14L, 1e15L, 1e16L, 1e17L, 1e18L, 1e19L,
+            1e20L, 1e21L, 1e22L, 1e23L, 1e24L, 1e25L, 1e26L, 1e27L};
+        long double r = (long double)mant;
+        r = e10 >= 0 ? r * q10[e10] : r / q10[-e10];
+        uint64_t bits;
+        memcpy(&bits, &r, sizeof bits);   /* x87 layout: the significand comes first */
+        if ((bits & 0x7ff) != 0x400) {
+            double x = (double)r;
+            *v = neg ? -x : x;
+            return NUM_OK;
+        }
+    }
+#endif
     char *end;
     double x = strtod(s, &end);
     if (end != s + len)

@@ -2,6 +2,10 @@
 #include "testutil.h"
 #include "diag_checks.h"
 #include "hn_status.h"
+#include "sh_csv.h"
+
+#include <stdint.h>
+#include <unistd.h>
 
 #include <gsl/gsl_multifit.h>
 #include <gsl/gsl_randist.h>
@@ -160,12 +164,73 @@ static void test_arch_lm_against_svd(void **state)
     gsl_rng_free(r);
 }
 
+/* The CSV reader's decimal fast paths against the C library's strtod (glibc,
+ * correctly rounded), bit for bit: 300000 random decimals of 1 to 19
+ * significant digits with the point anywhere and exponents from -30 to 30
+ * (GSL mt19937 seed 3), plus numbers that lie exactly half-way between two
+ * doubles, where extended precision alone would round twice. */
+static void test_csv_numbers_against_strtod(void **state)
+{
+    (void)state;
+    static const char *const halfway[] = { "9007199254740993", "-9007199254740995",
+                                           "90071992547409930e-1", "0.9007199254740993e16",
+                                           "18014398509481985", "1152921504606846977" };
+    const size_t nh = sizeof halfway / sizeof halfway[0], nr = 300000, n = nh + nr;
+    char path[] = "/tmp/hone-test-numbers-XXXXXX";
+    int fd = mkstemp(path);
+    assert_true(fd >= 0);
+    FILE *f = fdopen(fd, "w");
+    assert_non_null(f);
+    char (*text)[48] = malloc(n * sizeof *text);
+    assert_non_null(text);
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 3UL);
+    fputs("x\n", f);
+    for (size_t i = 0; i < n; i++) {
+        if (i < nh) {
+            snprintf(text[i], sizeof text[i], "%s", halfway[i]);
+        } else {
+            int nd = 1 + (int)gsl_rng_uniform_int(r, 19), point = (int)gsl_rng_uniform_int(r, (unsigned long)nd + 1);
+            size_t o = 0;
+            if (gsl_rng_uniform(r) < 0.5)
+                text[i][o++] = '-';
+            for (int k = 0; k < nd; k++) {
+                if (k == point && k > 0)
+                    text[i][o++] = '.';
+                text[i][o++] = (char)('0' + (k == 0 ? 1 + gsl_rng_uniform_int(r, 9) : gsl_rng_uniform_int(r, 10)));
+            }
+            text[i][o] = '\0';
+            if (gsl_rng_uniform(r) < 0.5)
+                snprintf(text[i] + o, sizeof text[i] - o, "e%d", (int)gsl_rng_uniform_int(r, 61) - 30);
+        }
+        fprintf(f, "%s\n", text[i]);
+    }
+    fclose(f);
+    sh_data d;
+    sh_error e;
+    int rc = sh_csv_load(path, NULL, &d, &e);
+    unlink(path);
+    assert_int_equal(rc, HN_OK);
+    assert_int_equal(d.n, n);
+    size_t bad = 0;
+    for (size_t i = 0; i < n; i++) {
+        double want = strtod(text[i], NULL);
+        if (memcmp(&want, &d.y[i], sizeof want) != 0 && bad++ < 5)
+            print_error("%s: read %.17g, strtod %.17g\n", text[i], d.y[i], want);
+    }
+    assert_int_equal(bad, 0);
+    sh_data_free(&d);
+    free(text);
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_periodogram_even_route),
         cmocka_unit_test(test_runs_median_by_selection),
         cmocka_unit_test(test_arch_lm_against_svd),
+        cmocka_unit_test(test_csv_numbers_against_strtod),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
