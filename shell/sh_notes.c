@@ -1,6 +1,7 @@
 /* sh_notes.c - per-session lists of the analyst's notes. */
 #include "sh_notes.h"
 
+#include <pthread.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -12,6 +13,7 @@ typedef struct {
 
 #define MAX_LISTS 16            /* sessions alive at once (replay nests a few) */
 static note_list lists[MAX_LISTS];
+static pthread_mutex_t lock = PTHREAD_MUTEX_INITIALIZER;   /* batch runs sessions on threads */
 
 static note_list *find(const struct sh_session *s, int create)
 {
@@ -29,7 +31,7 @@ static note_list *find(const struct sh_session *s, int create)
     return NULL;
 }
 
-int sh_notes_add(const struct sh_session *s, int model, const char *text)
+static int add_locked(const struct sh_session *s, int model, const char *text)
 {
     note_list *l = find(s, 1);
     if (!l)
@@ -51,14 +53,25 @@ int sh_notes_add(const struct sh_session *s, int model, const char *text)
     return 0;
 }
 
-const sh_note *sh_notes_get(const struct sh_session *s, int *n)
+int sh_notes_add(const struct sh_session *s, int model, const char *text)
 {
-    note_list *l = find(s, 0);
-    *n = l ? l->n : 0;
-    return l ? l->v : NULL;
+    pthread_mutex_lock(&lock);
+    int rc = add_locked(s, model, text);
+    pthread_mutex_unlock(&lock);
+    return rc;
 }
 
-void sh_notes_clear(const struct sh_session *s)
+const sh_note *sh_notes_get(const struct sh_session *s, int *n)
+{
+    pthread_mutex_lock(&lock);
+    note_list *l = find(s, 0);
+    *n = l ? l->n : 0;
+    const sh_note *v = l ? l->v : NULL;
+    pthread_mutex_unlock(&lock);
+    return v;
+}
+
+static void clear_locked(const struct sh_session *s)
 {
     note_list *l = find(s, 0);
     if (!l)
@@ -69,10 +82,19 @@ void sh_notes_clear(const struct sh_session *s)
     memset(l, 0, sizeof *l);
 }
 
+void sh_notes_clear(const struct sh_session *s)
+{
+    pthread_mutex_lock(&lock);
+    clear_locked(s);
+    pthread_mutex_unlock(&lock);
+}
+
 void sh_notes_move(const struct sh_session *to, const struct sh_session *from)
 {
-    sh_notes_clear(to);
+    pthread_mutex_lock(&lock);
+    clear_locked(to);
     note_list *l = find(from, 0);
     if (l)
         l->owner = to;
+    pthread_mutex_unlock(&lock);
 }

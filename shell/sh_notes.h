@@ -2,7 +2,10 @@
  *
  * Notes are held beside a session (keyed by its address) because the
  * session struct has no field for them; each note remembers the model that
- * was current when it was written. */
+ * was current when it was written.  The functions are thread-safe (batch
+ * runs sessions on threads).  Whoever frees a session should call
+ * sh_notes_clear on it, or a later session at the same address would see
+ * its notes. */
 #ifndef SH_NOTES_H
 #define SH_NOTES_H
 
