@@ -31,6 +31,15 @@ size_t fit_min_obs(const fit_spec *spec)
     return m;
 }
 
+double fit_work_bytes(const fit_spec *spec, size_t n)
+{
+    if (!spec)
+        return 0.0;
+    int k = (spec->mean ? 1 : 0) + spec->n_ar + spec->n_ma;
+    double per = spec->garch ? 8.0 * (k + 5) : 40.0;
+    return per * (double)n;
+}
+
 int fit_check_input(const double *y, size_t n, const fit_spec *spec)
 {
     if (!spec || (!y && n > 0))
@@ -56,6 +65,8 @@ int fit_check_input(const double *y, size_t n, const fit_spec *spec)
         too_big |= fabs(y[t]) > FIT_MAX_ABS_VALUE;
     }
     if (too_big)
+        return HN_ELIMIT;
+    if (fit_work_bytes(spec, n) > FIT_MAX_WORK_BYTES)
         return HN_ELIMIT;
     if (n < fit_min_obs(spec))
         return HN_ESHORT;

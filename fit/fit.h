@@ -77,7 +77,8 @@ typedef struct {
  * filled (and owns its arrays: release with fit_result_free), even when the
  * optimiser did not converge (then FIT_WARN_NOCONV is set and converged = 0).
  * Errors: HN_ESHORT (too few observations for the parameters), HN_ECONST,
- * HN_EINVAL, HN_ELIMIT (a value beyond FIT_MAX_ABS_VALUE), HN_ENOMEM, HN_EINTR,
+ * HN_EINVAL, HN_ELIMIT (a value beyond FIT_MAX_ABS_VALUE, or more working memory
+ * than FIT_MAX_WORK_BYTES), HN_ENOMEM, HN_EINTR,
  * HN_ENUMERIC; *RES is then zeroed. */
 int fit_model(const double *y, size_t n, const fit_spec *spec,
               const fit_options *opt, fit_result *res);
@@ -91,6 +92,14 @@ int fit_result_copy(fit_result *dst, const fit_result *src);
  * likelihood could overflow a double (1e150 squared is 1e300, leaving room
  * for 1e8 terms), so such series are refused with HN_ELIMIT; rescale them. */
 #define FIT_MAX_ABS_VALUE 1e150
+
+/* Working memory fit_model needs for SPEC on N observations, in bytes: an
+ * estimate from the arrays it allocates per observation (GARCH: the
+ * residuals, variances and their derivatives in the k mean parameters,
+ * about 8 (k + 5) bytes; ARMA: about 40 bytes).  Above FIT_MAX_WORK_BYTES
+ * fit_model refuses with HN_ELIMIT before allocating anything. */
+#define FIT_MAX_WORK_BYTES 4294967296.0
+double fit_work_bytes(const fit_spec *spec, size_t n);
 
 /* Smallest series length fit_model accepts for SPEC (stated rule:
  * max AR lag + max(10, 3 x parameters), and 100 with a GARCH part). */

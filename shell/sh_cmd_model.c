@@ -80,6 +80,10 @@ static int cmd_fit(sh_session *s, sh_words *w)
     int rc = fit_model(s->y, s->n, &spec, &opt, &r);
     if (rc == HN_EINTR)
         return sh_fail(s, -1, "fit of %s interrupted; no model added", spec_text);
+    if (rc == HN_ELIMIT && fit_work_bytes(&spec, s->n) > FIT_MAX_WORK_BYTES)
+        return sh_fail(s, sh_arg(w, 0), "cannot fit %s: it would need about %.1f GB of working memory for %zu "
+                       "observations, above the limit of %.1f GB; fit fewer terms or a shorter stretch of the series",
+                       spec_text, fit_work_bytes(&spec, s->n) / 1e9, s->n, FIT_MAX_WORK_BYTES / 1e9);
     if (rc == HN_ELIMIT)
         return sh_fail(s, sh_arg(w, 0), "cannot fit %s: the series has values beyond +-%g, whose squares "
                        "could overflow in the likelihood; rescale it (e.g. divide by a power of ten)",

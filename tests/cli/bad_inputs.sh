@@ -76,6 +76,7 @@ done <<EOF
 1|the horizon must be a whole number of steps from 1 to 10000|-c "load tests/data/wn200.csv; fit ar(1); forecast 100000000"
 1|lags= takes a whole number from 1 to 400|-c "load tests/data/wn200.csv; fit ar(1); check lags=1000000000"
 0|not computed: needs at least 2 blocks|-c "load tests/data/wn200.csv; fit ar(1); check window=1000000000"
+1|GB of working memory for 8000000 observations, above the limit of 4.3 GB|-c "simulate arma(0,0) n=8000000 seed=1 set=mu:0,sigma2:1; fit ar[1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17,18,19,20,21,22,23,24,25,26,27,28,29,30,31,32]+ma[1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17,18,19,20,21,22,23,24,25,26,27,28,29,30,31,32]+garch(1,1)"
 1|cannot read journal tests/data/bad/nope.journal: No such file or directory|-c "replay $B/nope.journal"
 0|is incomplete: the recording ended while writing it, so it was not replayed|-c "replay $B/truncated.journal verify"
 # --- command files ----------------------------------------------------------

@@ -1,6 +1,6 @@
 /* test_edge.c - numerical edge cases: values near the top of the double range,
  * exactly predictable series, zero and constant residuals, series too large
- * in magnitude for the likelihood. */
+ * in magnitude for the likelihood or in length for the memory budget. */
 #include "testutil.h"
 #include "diag_battery.h"
 #include "diag_stats.h"
@@ -122,6 +122,25 @@ static void test_constant_residuals(void **state)
     assert_true(m == 4.25 && sd == 0.0);
 }
 
+/* The working-memory budget: refused before any allocation, with the
+ * estimate stated in fit.h (8 (k + 5) bytes per observation for GARCH). */
+static void test_memory_budget(void **state)
+{
+    (void)state;
+    fit_spec big = spec_of("arma(32,32)+garch(1,1)");
+    fit_spec small = spec_of("ar(1)+garch(1,1)");
+    size_t n = 8000000;
+    TU_NEAR(fit_work_bytes(&big, n), 8.0 * (65 + 5) * (double)n, 0.0);
+    assert_true(fit_work_bytes(&big, n) > FIT_MAX_WORK_BYTES);
+    assert_true(fit_work_bytes(&small, n) < FIT_MAX_WORK_BYTES);
+    double *y = calloc(n, sizeof *y);
+    assert_non_null(y);
+    fit_result r;
+    assert_int_equal(fit_model(y, n, &big, NULL, &r), HN_ELIMIT); /* before the constant check */
+    assert_int_equal(fit_model(y, n, &small, NULL, &r), HN_ECONST);
+    free(y);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -129,6 +148,7 @@ int main(void)
         cmocka_unit_test(test_large_scale_fits),
         cmocka_unit_test(test_exactly_predictable),
         cmocka_unit_test(test_constant_residuals),
+        cmocka_unit_test(test_memory_budget),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
