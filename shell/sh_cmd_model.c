@@ -3,6 +3,7 @@
 #include "sh_fmt.h"
 #include "sh_report_text.h"
 #include "hn_status.h"
+#include "diag_stats.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -100,6 +101,25 @@ static int cmd_fit(sh_session *s, sh_words *w)
 
 
 
+/* An ARMA model whose residuals are zero to rounding error (e.g. a series
+ * that follows y_t = 0.5 y_{t-1} exactly): say that the checks can only be
+ * testing rounding noise. */
+static void exact_fit_note(sh_session *s, const sh_model *m)
+{
+    double mean, sd;
+    if (m->fit.spec.garch || m->fit.n != s->n || !s->y || s->n < 2 ||
+        diag_mean_sd(s->y, s->n, &mean, &sd) != HN_OK || !(sd > 0.0))
+        return;
+    double rms = sqrt(m->fit.sigma2);
+    if (!(rms <= 1e-10 * sd))
+        return;
+    char a[32], b[32];
+    sh_printf(s, "  note: the residuals are zero to rounding error (their rms %s against the series' sd %s): the "
+              "model reproduces the series exactly, so these checks only test rounding noise\n",
+              sh_num(a, sizeof a, rms, 3), sh_num(b, sizeof b, sd, 3));
+    sh_json_kstring(&s->j, "note", "the residuals are zero to rounding error: the model reproduces the series exactly");
+}
+
 static int cmd_check(sh_session *s, sh_words *w)
 {
     sh_model *m = sh_current_model(s);
@@ -134,6 +154,7 @@ static int cmd_check(sh_session *s, sh_words *w)
         return sh_fail(s, -1, "cannot check model %d: %s", m->id, hn_strerror(rc));
     sh_text_check(s, m);
     sh_json_check(s, m);
+    exact_fit_note(s, m);
     return 0;
 }
 

@@ -33,7 +33,9 @@ for line in sys.stdin:
   fi
 }
 
-case_run "exactly predictable AR(1)" "ar1                   0.5" 0 \
+case_run "exactly predictable AR(1): estimate" "ar1                   0.5" 0 \
+  "load $tmp/halving.csv; fit ar(1)"
+case_run "exactly predictable AR(1): checks of rounding noise" "the residuals are zero to rounding error" 0 \
   "load $tmp/halving.csv; series; fit ar(1); check; forecast 3; advise"
 case_run "linear trend" "near a unit root" 0 \
   "load $tmp/line.csv; series; fit ar(1); check; forecast 3"
