@@ -410,44 +410,56 @@ static int ar_normal_equations(const fit_spec *spec, const double *ys, size_t nn
     return rc;
 }
 
-/* The long autoregression of Hannan-Rissanen: coefficients of ys_t - ctr on
- * an intercept (OFF = 1) and lags 1..M of the centred series, t = M..nn-1,
- * from the normal equations accumulated in blocks of 4096 rows (triangle
- * only) and solved by Cholesky (LAPACKE_dposv).  About M/2 multiply-adds a
- * row instead of a QR of the rows x (M+1) design: these are start values,
- * which the optimiser refines, so the digits the normal equations can lose
- * on an ill-conditioned design do not reach the estimates.  COEF (OFF + M).
+/* The long autoregression of Hannan-Rissanen: coefficients of z_t = ys_t -
+ * ctr on an intercept (OFF = 1) and lags 1..M of z, t = M..nn-1, from the
+ * normal equations solved by Cholesky (LAPACKE_dposv).  The lag cross
+ * products S(k, l) = sum_t z_{t-k} z_{t-l} come from the lag structure:
+ * S(0, d) is one sum per lag d, and S(k+1, k+1+d) = S(k, k+d) minus the
+ * product leaving at the end of the window plus the one entering at its
+ * start, so the whole matrix costs M + 1 passes of multiply-adds instead of
+ * a QR of the rows x (M+1) design.  These are start values, which the
+ * optimiser refines, so the digits the normal equations can lose on an
+ * ill-conditioned design do not reach the estimates.  COEF (OFF + M).
  * HN_OK, HN_ENOMEM, or HN_ESINGULAR when the matrix is not positive
  * definite (the caller then uses the QR). */
 static int long_ar_normal(const double *ys, size_t nn, size_t M, double ctr, int off, double *coef)
 {
-    const size_t c = M + (size_t)off;
-    double *A = calloc(2 * c * c + 3 * c, sizeof *A);
+    const size_t c = M + (size_t)off, o = (size_t)off;
+    double *A = calloc(c * c + c + nn + M + 1, sizeof *A);
     if (!A)
         return HN_ENOMEM;
-    double *Ab = A + c * c, *b = Ab + c * c, *bb = b + c, *x = bb + c;
-    for (size_t t0 = M; t0 < nn; t0 += 4096) {
-        size_t t1 = t0 + 4096 < nn ? t0 + 4096 : nn;
-        memset(Ab, 0, c * c * sizeof *Ab);
-        memset(bb, 0, c * sizeof *bb);
-        for (size_t t = t0; t < t1; t++) {
-            if (off)
-                x[0] = 1.0;
-            for (size_t k = 1; k <= M; k++)
-                x[(size_t)off + k - 1] = ys[t - k] - ctr;
-            const double yt = ys[t] - ctr;
-            for (size_t k = 0; k < c; k++) {
-                const double xk = x[k];
-                double *row = Ab + k * c;
-                bb[k] += xk * yt;
-                for (size_t l = 0; l <= k; l++)
-                    row[l] += xk * x[l];
-            }
+    double *b = A + c * c, *z = b + c, *S = z + nn;
+    for (size_t t = 0; t < nn; t++)
+        z[t] = ys[t] - ctr;
+    /* S[d] = S(0, d) and T = sum_t z_t over the window t = M..nn-1 */
+    for (size_t d = 0; d <= M; d++) {
+        double acc = 0.0;
+        for (size_t t = M; t < nn; t++)
+            acc += z[t] * z[t - d];
+        S[d] = acc;
+    }
+    double tk = 0.0;
+    for (size_t t = M; t < nn; t++)
+        tk += z[t];
+    /* b: lag k against lag 0; A: lags k, l >= 1 (walk k along each diagonal) */
+    for (size_t k = 1; k <= M; k++)
+        b[o + k - 1] = S[k];
+    for (size_t d = 0; d < M; d++) {
+        double s = S[d];
+        for (size_t k = 0; k + d < M; k++) {
+            /* S(k, k+d) -> S(k+1, k+1+d): the window moves one step back */
+            s += z[M - k - 1] * z[M - k - 1 - d] - z[nn - 1 - k] * z[nn - 1 - k - d];
+            size_t r = o + k, q = o + k + d;       /* lags k+1 and k+1+d */
+            A[q * c + r] = A[r * c + q] = s;
         }
-        for (size_t k = 0; k < c * c; k++)
-            A[k] += Ab[k];
-        for (size_t k = 0; k < c; k++)
-            b[k] += bb[k];
+    }
+    if (off) {
+        A[0] = (double)(nn - M);
+        b[0] = tk;
+        for (size_t k = 0; k < M; k++) {   /* T(k+1) = sum_t z_{t-k-1} */
+            tk += z[M - k - 1] - z[nn - 1 - k];
+            A[k + 1] = A[(k + 1) * c] = tk;
+        }
     }
     lapack_int info = LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', (lapack_int)c, 1, A, (lapack_int)c, b, 1);
     int rc = info == 0 ? HN_OK : HN_ESINGULAR;
