@@ -178,9 +178,12 @@ static int first_diff(const char *a, size_t la, const char *b, size_t lb, char *
         size_t ea = i, eb = j;
         while (ea < la && a[ea] != '\n') ea++;
         while (eb < lb && b[eb] != '\n') eb++;
-        if (ea - i != eb - j || memcmp(a + i, b + j, ea - i) || (i >= la) != (j >= lb)) {
-            snprintf(oa, olen, "%.*s", i < la ? (int)(ea - i) : 0, i < la ? a + i : "");
-            snprintf(ob, olen, "%.*s", j < lb ? (int)(eb - j) : 0, j < lb ? b + j : "");
+        size_t ca = ea - i, cb = eb - j;          /* content lengths, a CR before the LF ignored */
+        if (ca && a[ea - 1] == '\r') ca--;
+        if (cb && b[eb - 1] == '\r') cb--;
+        if (ca != cb || memcmp(a + i, b + j, ca) || (i >= la) != (j >= lb)) {
+            snprintf(oa, olen, "%.*s", i < la ? (int)ca : 0, i < la ? a + i : "");
+            snprintf(ob, olen, "%.*s", j < lb ? (int)cb : 0, j < lb ? b + j : "");
             if (i >= la) snprintf(oa, olen, "(nothing: the entry ended)");
             if (j >= lb) snprintf(ob, olen, "(nothing: the entry ended)");
             return line;
@@ -360,12 +363,12 @@ static int cmd_replay(sh_session *s, sh_words *w)
         size_t glen = 0;
         const char *got = sh_journal_last(t.journal, &glen);
         const char *want = d.text + en->raw_off;
-        if (glen == en->raw_len && !memcmp(got, want, glen)) {
+        int k = first_diff(want, en->raw_len, got, glen, da, db, sizeof da);
+        if (k < 0) {
             same++;
         } else if (diff_at < 0) {
             diff_at = e;
-            int k = first_diff(want, en->raw_len, got, glen, da, db, sizeof da);
-            diff_line = en->line + (k > 0 ? k : 0);
+            diff_line = en->line + k;
             if (verify)
                 break;
         }

@@ -147,6 +147,8 @@ int sh_jdoc_parse(const char *buf, size_t len, sh_jdoc *doc, char *err, size_t e
         doc->nlines = ln;
         if (!l.has_nl)
             doc->partial_line = 1;
+        else if (l.len && t[l.off + l.len - 1] == '\r')
+            l.len--;                    /* a journal saved with CRLF line ends */
         const char *s = t + l.off;
         size_t voff, vlen;
 

@@ -3,7 +3,8 @@
  * The parser takes arbitrary bytes: it never reads outside the buffer, never
  * crashes on malformed input, and says where the text stopped making sense.
  * A journal whose last entry lacks its closing '=' or '!' line (the process
- * was killed while writing it) parses: that entry is marked incomplete. */
+ * was killed while writing it) parses: that entry is marked incomplete.
+ * CRLF line ends are read as LF (the raw spans keep the bytes as they are). */
 #ifndef SH_JOURNAL_READ_H
 #define SH_JOURNAL_READ_H
 

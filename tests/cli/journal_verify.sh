@@ -48,6 +48,11 @@ printf '%s\n' "$out"
 printf '%s\n' "$out" | grep -q "differs at command 1 of 15" || { echo "difference not placed at command 1"; exit 1; }
 printf '%s\n' "$out" | grep -q "journal line $line: *| loaded 731" || { echo "difference not at line $line"; exit 1; }
 
+# A journal saved with CRLF line ends (a reviewer's editor) still verifies.
+sed 's/$/\r/' j.txt > jcrlf.txt
+out=$("$HONE" -c 'replay jcrlf.txt verify' 2>&1) || { printf '%s\n' "$out"; echo "CRLF journal did not verify"; exit 1; }
+printf '%s\n' "$out" | grep -q "all 15 commands reproduced" || { printf '%s\n' "$out"; exit 1; }
+
 # A plain replay leaves the session in the recorded state, notes included.
 out=$("$HONE" -c 'replay j.txt; models; note' 2>/dev/null)
 printf '%s\n' "$out" | grep -q "every output matched the journal" || { echo "plain replay did not match"; exit 1; }

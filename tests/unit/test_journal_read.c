@@ -79,6 +79,33 @@ static void test_good(void **state)
     sh_jdoc_free(&d);              /* twice is harmless */
 }
 
+/* The same journal saved with CRLF line ends reads the same. */
+static void test_crlf(void **state)
+{
+    (void)state;
+    size_t n = strlen(GOOD);
+    char *buf = malloc(2 * n);
+    assert_non_null(buf);
+    size_t k = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (GOOD[i] == '\n')
+            buf[k++] = '\r';
+        buf[k++] = GOOD[i];
+    }
+    sh_jdoc d;
+    char err[256], v[32];
+    assert_int_equal(sh_jdoc_parse(buf, k, &d, err, sizeof err, NULL), HN_OK);
+    assert_int_equal(d.nentries, 3);
+    assert_false(d.truncated);
+    assert_string_equal(span(&d, d.entries[0].cmd_off, d.entries[0].cmd_len), "load \"data/orders file.csv\"");
+    assert_string_equal(span(&d, d.entries[1].err_off, d.entries[1].err_len), "model 'arma(9,9,9)': expected ')'");
+    assert_string_equal(span(&d, d.inputs[0].path_off, d.inputs[0].path_len), "data/orders file.csv");
+    assert_int_equal(sh_jdoc_setting(&d, "color", v, sizeof v), 1);
+    assert_string_equal(v, "no");
+    sh_jdoc_free(&d);
+    free(buf);
+}
+
 /* Cut GOOD after LEN bytes; expect TRUNC, NENT entries, and the status of the last. */
 static void cut(size_t len, int trunc, int nent, int last_status)
 {
@@ -261,6 +288,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_good),
+        cmocka_unit_test(test_crlf),
         cmocka_unit_test(test_truncated),
         cmocka_unit_test(test_malformed),
         cmocka_unit_test(test_round_trip),
