@@ -163,18 +163,39 @@ static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, doub
     return HN_OK;
 }
 
+/* sum_{t=k}^{n-1} d_t d_{t-k}: plain sums over blocks of 64 terms (four
+ * interleaved partial sums of 16 terms each), and the block sums added with
+ * compensation (Neumaier).  The error is that of summing 16 terms plus a
+ * compensated sum of the blocks, far below the digits the ACF is quoted to,
+ * at under half the cost of compensating every term. */
+static double lag_product_sum(const double *d, size_t n, size_t k)
+{
+    ksum tot = { 0.0, 0.0 };
+    size_t t = k;
+    for (; t + 64 <= n; t += 64) {
+        double a = 0.0, b = 0.0, c = 0.0, e = 0.0;
+        const double *p = d + t, *q = d + t - k;
+        for (size_t i = 0; i < 64; i += 4) {
+            a += p[i] * q[i];
+            b += p[i + 1] * q[i + 1];
+            c += p[i + 2] * q[i + 2];
+            e += p[i + 3] * q[i + 3];
+        }
+        ksum_add(&tot, (a + b) + (c + e));
+    }
+    for (; t < n; t++)
+        ksum_add(&tot, d[t] * d[t - k]);
+    return ksum_value(&tot);
+}
+
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf)
 {
     double *d, ss0;
     int rc = acf_prepare(x, n, maxlag, &d, &ss0);
     if (rc != HN_OK)
         return rc;
-    for (int k = 1; k <= maxlag; k++) {
-        ksum s = { 0.0, 0.0 };
-        for (size_t t = (size_t)k; t < n; t++)
-            ksum_add(&s, d[t] * d[t - (size_t)k]);
-        acf[k - 1] = ksum_value(&s) / ss0;
-    }
+    for (int k = 1; k <= maxlag; k++)
+        acf[k - 1] = lag_product_sum(d, n, (size_t)k) / ss0;
     free(d);
     return HN_OK;
 }
