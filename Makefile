@@ -92,12 +92,13 @@ hone-asan-check: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libho
 	$(CC) $(ALL_CFLAGS) -o $(BUILD)/hone $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(LDLIBS)
 	@$(SAN_ENV) HONE=$(CURDIR)/$(BUILD)/hone BUILD=$(BUILD) sh tests/run.sh
 
-# Memcheck on the demo sessions: any error or definitely lost block fails.
+# Memcheck on the demo sessions and tests/memcheck.hone: any error or definitely
+# lost block fails.
 # tests/valgrind.supp names the few one-time allocations of other libraries.
 VALGRIND := valgrind --quiet --error-exitcode=99 --leak-check=full \
             --errors-for-leak-kinds=definite --show-leak-kinds=definite \
             --suppressions=tests/valgrind.supp --num-callers=30
-VALGRIND_FILES := demo-data/bakery.hone demo-data/grain.hone
+VALGRIND_FILES := demo-data/bakery.hone demo-data/grain.hone tests/memcheck.hone
 
 valgrind: hone
 	@for f in $(VALGRIND_FILES); do \
