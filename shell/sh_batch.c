@@ -101,30 +101,6 @@ typedef struct {
     const char *load_extra;      /* extra KEY=VALUE words for load, or NULL */
 } plan;
 
-/* Check the options and the argument count of W against C; 0 or -1 with
- * the session's error set (the rules of the interactive runner). */
-static int check_words(sh_session *s, const sh_command *c, sh_words *w)
-{
-    for (int i = 1; i < w->n; i++) {
-        const char *eq = strchr(w->word[i], '=');
-        if (!eq)
-            continue;
-        size_t k = (size_t)(eq - w->word[i]);
-        int ok = 0;
-        for (int o = 0; o < SH_MAX_OPTIONS && c->options[o]; o++)
-            if (strlen(c->options[o]) == k && !strncmp(c->options[o], w->word[i], k))
-                ok = 1;
-        if (!ok)
-            return sh_fail(s, i, "unknown option '%.*s' for %s", (int)k, w->word[i], c->name);
-    }
-    int na = sh_nargs(w);
-    if (na < c->min_args || na > c->max_args)
-        return sh_fail(s, -1, "%s takes %s; usage: %s", c->name,
-                       c->max_args == 0 ? "no arguments" :
-                       na < c->min_args ? "more arguments" : "fewer arguments", c->usage);
-    return 0;
-}
-
 /* Run LINE in S and append its JSON object to OUT ("," first unless
  * *FIRST).  ALLOW_LOAD lets the batch's own load through.  Returns 0 on
  * success, 1 when the command failed (its object then says why), and -1
@@ -160,7 +136,7 @@ static int run_one(sh_session *s, const char *line, int allow_load, strbuf *out,
             sh_fail(s, 0, "'%s' is not available in a batch (each series is loaded by the batch itself, "
                     "and journals belong to interactive sessions)", c->name);
             rc = 1;
-        } else if (check_words(s, c, &w) != 0) {
+        } else if (sh_command_check(s, c, &w) != 0) {
             rc = 1;
         } else {
             char *text = NULL;

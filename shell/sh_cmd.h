@@ -26,6 +26,11 @@ const sh_command *sh_command_find(const char *name);
 /* The command name closest to NAME (for "did you mean"), or NULL. */
 const char *sh_command_suggest(const char *name);
 
+/* Check the options (KEY=VALUE keys against C's list, none twice) and the
+ * number of positional words of W against C.  0, or -1 with the session's
+ * error set and pointing at the offending word. */
+int sh_command_check(sh_session *s, const sh_command *c, sh_words *w);
+
 /* Index of the K-th positional word (0-based, after the command name), or -1. */
 int sh_arg(const sh_words *w, int k);
 /* Number of positional words after the command name. */

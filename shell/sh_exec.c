@@ -142,8 +142,7 @@ int sh_nargs(const sh_words *w)
     return c;
 }
 
-/* Check options against the table entry; report the first unknown one. */
-static int check_options(sh_session *s, const sh_command *c, sh_words *w)
+int sh_command_check(sh_session *s, const sh_command *c, sh_words *w)
 {
     for (int i = 1; i < w->n; i++) {
         const char *eq = strchr(w->word[i], '=');
@@ -227,7 +226,7 @@ int sh_exec_line(sh_session *s, const char *line, const char *where)
         else
             sh_fail(s, 0, "unknown command '%s' ('help' lists the commands)", w.word[0]);
         rc = 1;
-    } else if (check_options(s, c, &w) != 0) {
+    } else if (sh_command_check(s, c, &w) != 0) {
         rc = 1;
     } else {
         sh_interrupted = 0;
