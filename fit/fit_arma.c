@@ -61,23 +61,30 @@ void fit_arma_ws_free(fit_arma_ws *w)
     free(w);
 }
 
-/* The residual pass behind fit_arma_resid; JTJ (may be NULL) also receives
+/* The residual pass behind fit_arma_resid for OFF mean, NAR autoregressive
+ * and NMA moving-average terms; JTJ (may be NULL) also receives
  * sum de_t de_t' (nm x nm), the Gauss-Newton matrix of SSR / 2. */
-static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
-                      double *e, double *de, double *ssr, double *gsum, double *jtj)
+static inline __attribute__((always_inline)) int
+resid_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, double *e, double *de,
+           double *ssr, double *gsum, double *jtj, const int off, const int nar, const int nma)
 {
-    if (!w || !y || (!mpar && w->nm > 0))
-        return HN_EINVAL;
     const fit_spec *s = &w->spec;
     const size_t p = (size_t)w->p;
-    if (n <= p)
-        return HN_EINVAL;
-    const int nm = w->nm, nar = s->n_ar, nma = s->n_ma;
-    const int off = s->mean ? 1 : 0;
-    const double mu = s->mean ? mpar[0] : 0.0;
-    const double *ar = mpar + off, *ma = mpar + off + nar;
-    const int *al = s->ar_lag, *ml = s->ma_lag;
-    const size_t mask = w->mask, S = w->stride;
+    const int nm = off + nar + nma;
+    const double mu = off ? mpar[0] : 0.0;
+    /* coefficients, lags and accumulators in locals, which the compiler
+     * may keep in registers (no aliasing with the output arrays) */
+    double ar[FIT_MAX_PARAMS], ma[FIT_MAX_PARAMS], acc[FIT_MAX_PARAMS];
+    size_t al[FIT_MAX_PARAMS], ml[FIT_MAX_PARAMS];
+    for (int i = 0; i < nar; i++) {
+        ar[i] = mpar[off + i];
+        al[i] = (size_t)s->ar_lag[i];
+    }
+    for (int j = 0; j < nma; j++) {
+        ma[j] = mpar[off + nar + j];
+        ml[j] = (size_t)s->ma_lag[j];
+    }
+    const size_t mask = w->mask, S = (size_t)nm + 1;   /* = w->stride */
     double *ring = w->ring;
     const int deriv = de != NULL || gsum != NULL || jtj != NULL;
     const size_t ntri = (size_t)nm * (size_t)(nm + 1) / 2;
@@ -92,7 +99,6 @@ static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *m
     const double dmu = sum_ar - 1.0;    /* direct term of de_t/dmu */
 
     memset(ring, 0, (mask + 1) * S * sizeof *ring);
-    double *acc = w->acc;
     for (int k = 0; k < nm; k++)
         acc[k] = 0.0;
     double sum = 0.0, comp = 0.0;      /* Neumaier summation of e_t^2 */
@@ -101,9 +107,9 @@ static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *m
         const double *yt = y + t;
         double et = yt[0] - mu;
         for (int i = 0; i < nar; i++)
-            et -= ar[i] * (yt[-al[i]] - mu);
+            et -= ar[i] * (yt[-(ptrdiff_t)al[i]] - mu);
         for (int j = 0; j < nma; j++)
-            et -= ma[j] * ring[((t - (size_t)ml[j]) & mask) * S];
+            et -= ma[j] * ring[((t - ml[j]) & mask) * S];
         double *row = ring + (t & mask) * S;
         row[0] = et;
         double sq = et * et, tsum = sum + sq;
@@ -113,21 +119,23 @@ static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *m
             e[t - p] = et;
         if (!deriv)
             continue;
-        double *d = row + 1;
+        double d[FIT_MAX_PARAMS];
         if (off)
             d[0] = dmu;
         for (int i = 0; i < nar; i++)
-            d[off + i] = -(yt[-al[i]] - mu);
+            d[off + i] = -(yt[-(ptrdiff_t)al[i]] - mu);
         for (int j = 0; j < nma; j++)
-            d[off + nar + j] = -ring[((t - (size_t)ml[j]) & mask) * S];
+            d[off + nar + j] = -ring[((t - ml[j]) & mask) * S];
         for (int j = 0; j < nma; j++) {
-            const double *prev = ring + ((t - (size_t)ml[j]) & mask) * S + 1;
+            const double *prev = ring + ((t - ml[j]) & mask) * S + 1;
             const double c = ma[j];
             for (int k = 0; k < nm; k++)
                 d[k] -= c * prev[k];
         }
-        for (int k = 0; k < nm; k++)
+        for (int k = 0; k < nm; k++) {
             acc[k] += et * d[k];
+            row[1 + k] = d[k];
+        }
         if (jtj) {
             size_t idx = 0;
             for (int k = 0; k < nm; k++)
@@ -156,25 +164,47 @@ static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *m
     return HN_OK;
 }
 
+/* The orders met most often get copies of the pass with the term counts
+ * fixed at compile time, so that the loops over the terms unroll; each copy
+ * does the same operations in the same order as the general one, hence the
+ * same result to the last bit. */
+#define ARMA_ORDERS(X)  X(1, 0, 0) X(1, 1, 0) X(1, 2, 0) X(1, 0, 1) X(1, 1, 1) X(1, 2, 1) \
+                        X(1, 1, 2) X(1, 2, 2) X(0, 1, 0) X(0, 2, 1) X(0, 1, 1)
+
+static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                      double *e, double *de, double *ssr, double *gsum, double *jtj)
+{
+    if (!w || !y || (!mpar && w->nm > 0))
+        return HN_EINVAL;
+    const fit_spec *s = &w->spec;
+    if (n <= (size_t)w->p)
+        return HN_EINVAL;
+    const int off = s->mean ? 1 : 0, nar = s->n_ar, nma = s->n_ma;
+#define RESID_CASE(O, A, M) \
+    if (off == (O) && nar == (A) && nma == (M)) \
+        return resid_body(w, y, n, mpar, e, de, ssr, gsum, jtj, O, A, M);
+    ARMA_ORDERS(RESID_CASE)
+#undef RESID_CASE
+    return resid_body(w, y, n, mpar, e, de, ssr, gsum, jtj, off, nar, nma);
+}
+
 int fit_arma_resid(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
                    double *e, double *de, double *ssr, double *gsum)
 {
     return resid_pass(w, y, n, mpar, e, de, ssr, gsum, NULL);
 }
 
-/* The second-order pass behind fit_arma_hessian; E (may be NULL) also
+/* The second-order pass behind fit_arma_hessian, term counts as in
+ * resid_body; E (may be NULL) also
  * receives the residuals, as in fit_arma_resid. */
-static int hessian_pass(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
-                        double *e, double *ssr, double *gsum, double *hsum, double *jtj)
+static inline __attribute__((always_inline)) int
+hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, double *e,
+             double *ssr, double *gsum, double *hsum, double *jtj, const int off, const int nar,
+             const int nma)
 {
-    if (!w || !y || (!mpar && w->nm > 0) || !hsum)
-        return HN_EINVAL;
     const fit_spec *s = &w->spec;
     const size_t p = (size_t)w->p;
-    if (n <= p)
-        return HN_EINVAL;
-    const int nm = w->nm, nar = s->n_ar, nma = s->n_ma;
-    const int off = s->mean ? 1 : 0, ma0 = off + nar;
+    const int nm = off + nar + nma, ma0 = off + nar;
     /* second derivatives are kept as the packed lower triangle, k >= l,
      * entry k (k + 1) / 2 + l */
     const size_t ntri = (size_t)nm * (size_t)(nm + 1) / 2;
@@ -284,6 +314,23 @@ static int hessian_pass(fit_arma_ws *w, const double *y, size_t n, const double 
     if (gsum)
         memcpy(gsum, acc, (size_t)nm * sizeof *acc);
     return HN_OK;
+}
+
+static int hessian_pass(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
+                        double *e, double *ssr, double *gsum, double *hsum, double *jtj)
+{
+    if (!w || !y || (!mpar && w->nm > 0) || !hsum)
+        return HN_EINVAL;
+    const fit_spec *s = &w->spec;
+    if (n <= (size_t)w->p)
+        return HN_EINVAL;
+    const int off = s->mean ? 1 : 0, nar = s->n_ar, nma = s->n_ma;
+#define HESSIAN_CASE(O, A, M) \
+    if (off == (O) && nar == (A) && nma == (M)) \
+        return hessian_body(w, y, n, mpar, e, ssr, gsum, hsum, jtj, O, A, M);
+    ARMA_ORDERS(HESSIAN_CASE)
+#undef HESSIAN_CASE
+    return hessian_body(w, y, n, mpar, e, ssr, gsum, hsum, jtj, off, nar, nma);
 }
 
 int fit_arma_hessian(fit_arma_ws *w, const double *y, size_t n, const double *mpar,
