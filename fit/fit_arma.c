@@ -208,15 +208,23 @@ hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, doub
     /* second derivatives are kept as the packed lower triangle, k >= l,
      * entry k (k + 1) / 2 + l */
     const size_t ntri = (size_t)nm * (size_t)(nm + 1) / 2;
-    const size_t mask = w->mask, S = w->stride;
+    const size_t mask = w->mask, S = (size_t)nm + 1;   /* = w->stride */
     if (!w->ring2) {
         w->ring2 = malloc((mask + 1) * (ntri ? ntri : 1) * sizeof *w->ring2);
         if (!w->ring2)
             return HN_ENOMEM;
     }
-    const double mu = s->mean ? mpar[0] : 0.0;
-    const double *ar = mpar + off, *ma = mpar + off + nar;
-    const int *al = s->ar_lag, *ml = s->ma_lag;
+    const double mu = off ? mpar[0] : 0.0;
+    double ar[FIT_MAX_PARAMS], ma[FIT_MAX_PARAMS], acc[FIT_MAX_PARAMS];
+    size_t al[FIT_MAX_PARAMS], ml[FIT_MAX_PARAMS];
+    for (int i = 0; i < nar; i++) {
+        ar[i] = mpar[off + i];
+        al[i] = (size_t)s->ar_lag[i];
+    }
+    for (int j = 0; j < nma; j++) {
+        ma[j] = mpar[off + nar + j];
+        ml[j] = (size_t)s->ma_lag[j];
+    }
     double *ring = w->ring, *ring2 = w->ring2;
     double sum_ar = 0.0;
     for (int i = 0; i < nar; i++)
@@ -227,7 +235,6 @@ hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, doub
     double jacc[FIT_MAX_PARAMS * (FIT_MAX_PARAMS + 1) / 2];
     for (size_t k = 0; k < ntri; k++)
         hacc[k] = jacc[k] = 0.0;
-    double *acc = w->acc;
     for (int k = 0; k < nm; k++)
         acc[k] = 0.0;
     double sum = 0.0, comp = 0.0;
@@ -236,9 +243,9 @@ hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, doub
         const double *yt = y + t;
         double et = yt[0] - mu;
         for (int i = 0; i < nar; i++)
-            et -= ar[i] * (yt[-al[i]] - mu);
+            et -= ar[i] * (yt[-(ptrdiff_t)al[i]] - mu);
         for (int j = 0; j < nma; j++)
-            et -= ma[j] * ring[((t - (size_t)ml[j]) & mask) * S];
+            et -= ma[j] * ring[((t - ml[j]) & mask) * S];
         double *row = ring + (t & mask) * S, *d = row + 1;
         double *restrict h2 = ring2 + (t & mask) * ntri;
         row[0] = et;
@@ -248,9 +255,9 @@ hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, doub
         if (off)
             d[0] = sum_ar - 1.0;
         for (int i = 0; i < nar; i++)
-            d[off + i] = -(yt[-al[i]] - mu);
+            d[off + i] = -(yt[-(ptrdiff_t)al[i]] - mu);
         for (int j = 0; j < nma; j++)
-            d[ma0 + j] = -ring[((t - (size_t)ml[j]) & mask) * S];
+            d[ma0 + j] = -ring[((t - ml[j]) & mask) * S];
         if (e)
             e[t - p] = et;
         if (nma == 0) {
@@ -261,7 +268,7 @@ hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, doub
                     h2[(size_t)(off + i) * (size_t)(off + i + 1) / 2] = 1.0;
         }
         for (int j = 0; j < nma; j++) {
-            const size_t r = (t - (size_t)ml[j]) & mask;
+            const size_t r = (t - ml[j]) & mask;
             const double *pd = ring + r * S + 1;
             const double *restrict ph = ring2 + r * ntri;
             const double c = ma[j];

@@ -64,28 +64,29 @@ void fit_garch_work_free(fit_garch_work *w)
     w->aw = NULL;
 }
 
-int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
-                     double *grad, double *scores, double *opg)
+/* The pass behind fit_garch_loglik for KM mean parameters and Student-t
+ * (HAS_NU = 1) or normal innovations; the caller has counted the pass and
+ * checked TH.  Sums and derivatives live in locals (no aliasing with the
+ * output arrays). */
+static inline __attribute__((always_inline)) int
+loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, double *scores,
+            double *opg, const int km, const int has_nu)
 {
-    const int km = w->k_mean, np = w->np, io = w->i_omega;
+    const int np = km + 3 + has_nu, io = km;
     const int kv = km + 3;                 /* parameters the variance depends on */
     const size_t N = w->N;
     const int want_d = grad != NULL || scores != NULL || opg != NULL;
     const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
-    const double nu = w->has_nu ? th[np - 1] : 0.0;
-
-    w->passes++;
-    for (int i = 0; i < np; i++)
-        if (!isfinite(th[i]))
-            return HN_EDOMAIN;
-    if (w->has_nu && !(nu > 2.0))
-        return HN_EDOMAIN;
+    const double nu = has_nu ? th[np - 1] : 0.0;
+    const double *ev = w->e, *dev = w->de;
+    double *hv = w->h;
 
     /* Pass 1 (fit_arma_resid): e_t, de_t/dtheta_mean, sum e_t^2 and
      * sum e_t de_t.  sigma2_0 = e2_0 = s2 = mean e_t^2 at these mean parameters. */
-    double *dh = w->tmp;                   /* d sigma2_t        (kv) */
-    double *de2 = w->tmp + np;             /* d e^2_{t-1}       (km) */
-    double *g = w->tmp + 2 * np;           /* gradient          (np) */
+    double dh[FIT_MAX_PARAMS];             /* d sigma2_t        (kv) */
+    double de2[FIT_MAX_PARAMS];            /* d e^2_{t-1}       (km) */
+    double g[FIT_MAX_PARAMS];              /* gradient          (np) */
+    double rowl[FIT_MAX_PARAMS];           /* this term's scores without SCORES */
     double ssr;
     int rc = fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
                             want_d ? de2 : NULL);
@@ -107,7 +108,7 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
 
     /* Constant of each term, and its derivative in nu. */
     double cst, dcst = 0.0;
-    if (w->has_nu) {
+    if (has_nu) {
         cst = gsl_sf_lngamma(0.5 * (nu + 1.0)) - gsl_sf_lngamma(0.5 * nu) -
               0.5 * log(M_PI * (nu - 2.0));
         dcst = 0.5 * gsl_sf_psi(0.5 * (nu + 1.0)) - 0.5 * gsl_sf_psi(0.5 * nu) -
@@ -119,14 +120,14 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
     ksum acc = { 0.0, 0.0 };
     double hprev = s2, e2prev = s2;
     for (size_t i = 0; i < N; i++) {
-        const double e = w->e[i];
+        const double e = ev[i];
         const double h = omega + alpha * e2prev + beta * hprev;
         if (!(h > 0.0) || !isfinite(h))
             return HN_EDOMAIN;
-        w->h[i] = h;
+        hv[i] = h;
         const double e2 = e * e;
         double lt, dl_dh, dl_de, dl_dnu = 0.0;
-        if (w->has_nu) {
+        if (has_nu) {
             const double u = e2 / (h * (nu - 2.0));
             const double lu = log1p(u);
             lt = -0.5 * log(h) - 0.5 * (nu + 1.0) * lu;
@@ -148,13 +149,13 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
             dh[km] = 1.0 + beta * dh[km];
             dh[km + 1] = e2prev + beta * dh[km + 1];
             dh[km + 2] = hprev + beta * dh[km + 2];
-            const double *d = w->de + i * (size_t)km;
-            double *row = scores ? scores + i * (size_t)np : w->tmp + 3 * np;
+            const double *d = dev + i * (size_t)km;
+            double *row = scores ? scores + i * (size_t)np : rowl;
             for (int c = 0; c < km; c++)
                 row[c] = dl_dh * dh[c] + dl_de * d[c];
             for (int c = km; c < kv; c++)
                 row[c] = dl_dh * dh[c];
-            if (w->has_nu)
+            if (has_nu)
                 row[np - 1] = dl_dnu;
             for (int c = 0; c < np; c++)
                 g[c] += row[c];
@@ -180,4 +181,26 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
             for (int b = a + 1; b < np; b++)
                 opg[a * np + b] = opg[b * np + a];
     return HN_OK;
+}
+
+int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
+                     double *grad, double *scores, double *opg)
+{
+    const int km = w->k_mean, np = w->np;
+    w->passes++;
+    for (int i = 0; i < np; i++)
+        if (!isfinite(th[i]))
+            return HN_EDOMAIN;
+    if (w->has_nu && !(th[np - 1] > 2.0))
+        return HN_EDOMAIN;
+    /* copies with the parameter counts fixed at compile time for the
+     * common mean models: the same operations in the same order */
+#define LOGLIK_CASE(K) \
+    if (km == (K)) \
+        return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, K, 1) \
+                         : loglik_body(w, th, ll, grad, scores, opg, K, 0);
+    LOGLIK_CASE(0) LOGLIK_CASE(1) LOGLIK_CASE(2) LOGLIK_CASE(3) LOGLIK_CASE(4)
+#undef LOGLIK_CASE
+    return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, km, 1)
+                     : loglik_body(w, th, ll, grad, scores, opg, km, 0);
 }
