@@ -31,6 +31,37 @@ static int squares(const double *x, size_t n, double *sq)
  * z_{1-alpha/2}/sqrt(n).  Returns HN_OK; HN_EINVAL (m < 1, no data, bad
  * alpha); HN_ESHORT (n < m + 2); HN_ECONST (squares all equal); HN_ENOMEM;
  * HN_ENUMERIC.  OUT is marked invalid on failure. */
+/* McLeod-Li from R[0..m-1], the autocorrelations of the squares. */
+static void mcleod_fill(const double *r, size_t n, int m, double alpha, diag_test *out)
+{
+    const char *name = "mcleod-li";
+    double dn = (double)n, q = 0.0, c = 0.0, big = 0.0;
+    for (int k = 1; k <= m; k++) {
+        /* compensated sum of the terms */
+        double term = r[k - 1] * r[k - 1] / (dn - k);
+        double y = term - c, t = q + y;
+        c = (t - q) - y;
+        q = t;
+        if (fabs(r[k - 1]) > big)
+            big = fabs(r[k - 1]);
+    }
+    q *= dn * (dn + 2.0);
+    diag_test_fill(out, name, DIAG_VOLATILITY, q, (double)m, gsl_cdf_chisq_Q(q, (double)m), alpha, big,
+         "largest |autocorrelation| of the squares");
+
+    double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt(dn);
+    int len = snprintf(out->detail, sizeof out->detail, "lags of x^2 beyond +/-%.3g:", band);
+    int any = 0;
+    for (int k = 1; k <= m && len > 0 && (size_t)len < sizeof out->detail - 16; k++) {
+        if (fabs(r[k - 1]) > band) {
+            len += snprintf(out->detail + len, sizeof out->detail - (size_t)len, " %d (%.3f)", k, r[k - 1]);
+            any = 1;
+        }
+    }
+    if (!any)
+        snprintf(out->detail, sizeof out->detail, "no lag of x^2 beyond +/-%.3g", band);
+}
+
 int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *out)
 {
     const char *name = "mcleod-li";
@@ -61,33 +92,29 @@ int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *ou
         free(r);
         return rc;
     }
-    double dn = (double)n, q = 0.0, c = 0.0, big = 0.0;
-    for (int k = 1; k <= m; k++) {
-        /* compensated sum of the terms */
-        double term = r[k - 1] * r[k - 1] / (dn - k);
-        double y = term - c, t = q + y;
-        c = (t - q) - y;
-        q = t;
-        if (fabs(r[k - 1]) > big)
-            big = fabs(r[k - 1]);
-    }
-    q *= dn * (dn + 2.0);
-    diag_test_fill(out, name, DIAG_VOLATILITY, q, (double)m, gsl_cdf_chisq_Q(q, (double)m), alpha, big,
-         "largest |autocorrelation| of the squares");
-
-    double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt(dn);
-    int len = snprintf(out->detail, sizeof out->detail, "lags of x^2 beyond +/-%.3g:", band);
-    int any = 0;
-    for (int k = 1; k <= m && len > 0 && (size_t)len < sizeof out->detail - 16; k++) {
-        if (fabs(r[k - 1]) > band) {
-            len += snprintf(out->detail + len, sizeof out->detail - (size_t)len, " %d (%.3f)", k, r[k - 1]);
-            any = 1;
-        }
-    }
-    if (!any)
-        snprintf(out->detail, sizeof out->detail, "no lag of x^2 beyond +/-%.3g", band);
+    mcleod_fill(r, n, m, alpha, out);
     free(sq);
     free(r);
+    return HN_OK;
+}
+
+int diag_mcleod_li_acf(const double *acf2, int nlags, size_t n, int m, double alpha,
+                       diag_test *out)
+{
+    const char *name = "mcleod-li";
+    if (!acf2 || m < 1 || !(alpha > 0.0 && alpha < 1.0)) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "needs data, m >= 1 and 0 < alpha < 1");
+        return HN_EINVAL;
+    }
+    if (n < (size_t)m + 2) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "too few observations for the lags asked");
+        return HN_ESHORT;
+    }
+    if (nlags < m) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "the autocorrelations given are too few");
+        return HN_EINVAL;
+    }
+    mcleod_fill(acf2, n, m, alpha, out);
     return HN_OK;
 }
 

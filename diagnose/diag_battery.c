@@ -55,6 +55,10 @@ typedef struct {
     int m, df_adjust, arch_q;
     size_t nblocks;
     double alpha;
+    /* autocorrelations of x and of x^2 computed once for the checks that
+     * read them (NULL: each such check computes its own) */
+    const double *acf, *acf2;
+    int nacf, nacf2;
 } run_ctx;
 
 /* The argument shapes of the checks in diag_checks.h. */
@@ -65,6 +69,13 @@ typedef int (*fn_lags_adj)(const double *x, size_t n, int m, int df_adjust, doub
                            diag_test *out);
 typedef int (*fn_moments)(const double *x, size_t n, double alpha, diag_test *out, double *skewness,
                           double *excess_kurtosis);
+/* The forms that take autocorrelations already computed. */
+typedef int (*fn_acf_adj)(const double *acf, int nlags, size_t n, int m, int df_adjust,
+                          double alpha, diag_test *out);
+typedef int (*fn_acf2_m)(const double *acf2, int nlags, size_t n, int m, double alpha,
+                         diag_test *out);
+typedef int (*fn_acf_plain)(const double *x, size_t n, const double *acf, int nlags,
+                            double alpha, diag_test *out);
 
 typedef enum {
     ARG_PLAIN,      /* (x, n, alpha, out) */
@@ -87,18 +98,24 @@ static const struct {
         fn_lags_adj lags_adj;
         fn_moments moments;
     } f;
+    struct {            /* the same check from the shared ACF (NULL: none) */
+        fn_acf_adj adj;
+        fn_acf2_m sq;
+        fn_acf_plain plain;
+    } a;
 } CHECKS[] = {
-    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks } },
-    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box } },
-    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce } },
-    { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram } },
-    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li } },
-    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points } },
-    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera } },
+    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf } },
+    { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram },
+                                    { .plain = diag_cum_periodogram_acf } },
+    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf } },
+    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL } },
+    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL } },
 };
 #define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
 
@@ -106,6 +123,12 @@ static const struct {
 static int run_check(size_t i, const run_ctx *c, diag_test *t)
 {
     double skew, kurt;
+    if (CHECKS[i].a.adj && c->acf)
+        return CHECKS[i].a.adj(c->acf, c->nacf, c->n, c->m, c->df_adjust, c->alpha, t);
+    if (CHECKS[i].a.sq && c->acf2)
+        return CHECKS[i].a.sq(c->acf2, c->nacf2, c->n, c->m, c->alpha, t);
+    if (CHECKS[i].a.plain && c->acf)
+        return CHECKS[i].a.plain(c->x, c->n, c->acf, c->nacf, c->alpha, t);
     switch (CHECKS[i].kind) {
     case ARG_PLAIN:   return CHECKS[i].f.plain(c->x, c->n, c->alpha, t);
     case ARG_BLOCKS:  return CHECKS[i].f.blocks(c->x, c->n, c->nblocks, c->alpha, t);
@@ -131,12 +154,20 @@ static void say(diag_battery *b, const char *fmt, ...)
 }
 
 /* Order-adjusted share of variance predictable by a long autoregression of
- * X (squares = 0) or of X^2 (squares = 1); NAN when it cannot be computed. */
-static double ar_share(const double *x, size_t n, int squares, int *ok_mem)
+ * X (squares = 0) or of X^2 (squares = 1); NAN when it cannot be computed.
+ * GIVEN (NULL: none) holds the autocorrelations of that series to at least
+ * the share's order, computed by the battery already. */
+static double ar_share(const double *x, size_t n, int squares, const double *given, int *ok_mem)
 {
     int order = diag_share_order(n);
     if (order < 1)
         return NAN;
+    if (given) {
+        double pacf[DIAG_SHARE_MAX];
+        if (order <= DIAG_SHARE_MAX && diag_pacf(given, order, pacf) == HN_OK)
+            return diag_predictable_share(pacf, order, n);
+        return NAN;
+    }
     double *acf = malloc((size_t)order * sizeof *acf), *pacf = malloc((size_t)order * sizeof *pacf);
     double *sq = squares ? malloc(n * sizeof *sq) : NULL;
     double share = NAN;
@@ -347,12 +378,42 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         out->profile_p[k - 1] = df >= 1 ? gsl_cdf_chisq_Q(out->profile_q[k - 1], (double)df) : NAN;
     }
 
+    /* The autocorrelations of x (above) and of x^2, once for every check that
+     * reads them, where diag_acf takes its direct route for all of them (so
+     * that each check sees the same digits as when it computes its own). */
+    int order = diag_share_order(n);
+    int top2 = out->m > order ? out->m : order;
+    int share_x = diag_acf_is_direct(n, (int)top);
+    double *sq = NULL, *acf2 = NULL;
+    if (share_x && (size_t)top2 <= n - 1 && diag_acf_is_direct(n, top2)) {
+        sq = malloc(n * sizeof *sq);
+        acf2 = malloc((size_t)top2 * sizeof *acf2);
+        if (!sq || !acf2) {
+            free(sq);
+            free(acf2);
+            diag_battery_free(out);
+            return HN_ENOMEM;
+        }
+        int fin = 1;
+        for (size_t i = 0; i < n; i++) {
+            fin &= isfinite(x[i]) != 0;
+            sq[i] = x[i] * x[i];
+        }
+        if (!fin || diag_acf(sq, n, top2, acf2) != HN_OK) {
+            free(acf2);               /* each check then says why itself */
+            acf2 = NULL;
+        }
+        free(sq);
+    }
+
     /* The checks. */
-    run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha };
+    run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
+                    share_x ? out->acf : NULL, acf2, (int)top, top2 };
     for (size_t i = 0; i < NCHECKS && out->ntests < DIAG_MAX_TESTS; i++) {
         diag_test *t = &out->tests[out->ntests++];
         rc = run_check(i, &ctx, t);
         if (rc == HN_ENOMEM) {
+            free(acf2);
             diag_battery_free(out);
             return HN_ENOMEM;
         }
@@ -364,7 +425,9 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
 
     /* Practical size beside significance. */
     int mem_ok = 1;
-    double serial = ar_share(x, n, 0, &mem_ok), vol = ar_share(x, n, 1, &mem_ok);
+    double serial = ar_share(x, n, 0, ctx.acf, &mem_ok);
+    double vol = ar_share(x, n, 1, acf2, &mem_ok);
+    free(acf2);
     if (!mem_ok) {
         diag_battery_free(out);
         return HN_ENOMEM;

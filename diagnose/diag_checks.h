@@ -16,6 +16,19 @@ int diag_ljung_box(const double *x, size_t n, int m, int df_adjust, double alpha
 int diag_box_pierce(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out);
 /* Cumulative periodogram with Bartlett's Kolmogorov-Smirnov bound. */
 int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out);
+/* The same three from autocorrelations already computed (diag_acf of the
+ * same X, divisor n): ACF[0..nlags-1] holds r_1..r_nlags, with nlags at
+ * least diag_share_order(n) (for the effect) and, for the portmanteau
+ * tests, at least m; ACF is only read and stays the caller's.  They give
+ * what the X-taking forms give when ACF equals what those compute (for
+ * the direct route of diag_acf, bit for bit).  HN_EINVAL, OUT marked
+ * invalid, when NLAGS is too small. */
+int diag_ljung_box_acf(const double *acf, int nlags, size_t n, int m, int df_adjust,
+                       double alpha, diag_test *out);
+int diag_box_pierce_acf(const double *acf, int nlags, size_t n, int m, int df_adjust,
+                        double alpha, diag_test *out);
+int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int nlags,
+                             double alpha, diag_test *out);
 
 /* --- constant variance: global against local (diag_variance.c) --- */
 /* Equality of block variances (Brown-Forsythe: Levene on |x - block median|)
@@ -33,6 +46,10 @@ int diag_rolling(const double *x, size_t n, size_t w, double *mean, double *sd);
 
 /* --- volatility clustering (diag_arch.c) --- */
 int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *out);
+/* McLeod-Li from ACF2[0..nlags-1], the autocorrelations of x^2 (nlags >= m;
+ * only read); as diag_mcleod_li for that ACF. */
+int diag_mcleod_li_acf(const double *acf2, int nlags, size_t n, int m, double alpha,
+                       diag_test *out);
 /* Engle's ARCH-LM: regress x_t^2 on 1, x_{t-1}^2..x_{t-q}^2; statistic (n-q) R^2, df q. */
 int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out);
 

@@ -55,31 +55,17 @@ int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out)
     return HN_OK;
 }
 
-/* Autocorrelations to lag max(M, share order), the serial effect, and the
- * list of lags 1..M outside +/- z/sqrt(n).  ACF gets a malloc'd array. */
-static int serial_common(const double *x, size_t n, int m, double alpha, double **acf_out,
-                         double *effect, char *lags, size_t lagslen)
+/* The serial effect (the long-autoregression share from ACF[0..order-1],
+ * order = diag_share_order(n)) and the list of lags 1..M outside
+ * +/- z/sqrt(n). */
+static void serial_from_acf(const double *acf, size_t n, int m, double alpha, double *effect,
+                            char *lags, size_t lagslen)
 {
     int order = diag_share_order(n);
-    int top = m > order ? m : order;
-    double *acf = malloc((size_t)top * sizeof *acf);
-    double *pacf = malloc((size_t)top * sizeof *pacf);
-    *acf_out = NULL;
-    if (!acf || !pacf) {
-        free(acf);
-        free(pacf);
-        return HN_ENOMEM;
-    }
-    int rc = diag_acf(x, n, top, acf);
-    if (rc != HN_OK) {
-        free(acf);
-        free(pacf);
-        return rc;
-    }
+    double pacf[DIAG_SHARE_MAX];
     *effect = NAN;
-    if (order >= 1 && diag_pacf(acf, order, pacf) == HN_OK)
+    if (order >= 1 && order <= DIAG_SHARE_MAX && diag_pacf(acf, order, pacf) == HN_OK)
         *effect = diag_predictable_share(pacf, order, n);
-    free(pacf);
 
     double band = gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt((double)n);
     size_t used = 0;
@@ -103,15 +89,13 @@ static int serial_common(const double *x, size_t n, int m, double alpha, double 
     }
     if (count == 0)
         snprintf(lags, lagslen, "none");
-    *acf_out = acf;
-    return HN_OK;
 }
 
-/* Ljung-Box (ljung = 1) or Box-Pierce (0). */
-static int portmanteau(const double *x, size_t n, int m, int df_adjust, double alpha,
-                       diag_test *out, int ljung)
+/* Arguments of Ljung-Box / Box-Pierce: HN_OK, or OUT marked invalid and
+ * HN_EINVAL / HN_ESHORT. */
+static int portmanteau_args(const char *name, size_t n, int m, int df_adjust, double alpha,
+                            diag_test *out)
 {
-    const char *name = ljung ? "ljung-box" : "box-pierce";
     char why[160];
     if (bad_alpha(alpha)) {
         diag_test_invalid(out, name, DIAG_SERIAL, "alpha must lie strictly between 0 and 1");
@@ -134,15 +118,18 @@ static int portmanteau(const double *x, size_t n, int m, int df_adjust, double a
         diag_test_invalid(out, name, DIAG_SERIAL, why);
         return HN_EINVAL;
     }
-    double *acf, effect;
+    return HN_OK;
+}
+
+/* Ljung-Box (ljung = 1) or Box-Pierce (0) from ACF lags 1..max(m, share order). */
+static void portmanteau_fill(const double *acf, size_t n, int m, int df_adjust, double alpha,
+                             diag_test *out, int ljung)
+{
+    const char *name = ljung ? "ljung-box" : "box-pierce";
+    double effect;
     char lags[160];
-    int rc = serial_common(x, n, m, alpha, &acf, &effect, lags, sizeof lags);
-    if (rc != HN_OK) {
-        diag_test_invalid(out, name, DIAG_SERIAL,
-                          rc == HN_ECONST ? "the values are constant" :
-                          rc == HN_ENOMEM ? "out of memory" : "a value is not finite");
-        return rc == HN_ENOMEM ? HN_ENOMEM : HN_EINVAL;
-    }
+    serial_from_acf(acf, n, m, alpha, &effect, lags, sizeof lags);
+    int df = m - df_adjust;
     double dn = (double)n, q = 0.0;
     /* Sum from the highest lag down: the small terms first. */
     for (int k = m; k >= 1; k--) {
@@ -150,7 +137,6 @@ static int portmanteau(const double *x, size_t n, int m, int df_adjust, double a
         q += ljung ? r2 / (dn - (double)k) : r2;
     }
     q *= ljung ? dn * (dn + 2.0) : dn;
-    free(acf);
     double p = gsl_cdf_chisq_Q(q, (double)df);
     memset(out, 0, sizeof *out);
     diag_test_fill(out, name, DIAG_SERIAL, q, (double)df, p, alpha, NAN, NULL);
@@ -158,6 +144,29 @@ static int portmanteau(const double *x, size_t n, int m, int df_adjust, double a
     out->effect_label = SERIAL_EFFECT;
     snprintf(out->detail, sizeof out->detail, "%d lags, df %d - %d; lags outside +/-%.3f: %s",
              m, m, df_adjust, gsl_cdf_ugaussian_Qinv(alpha / 2.0) / sqrt(dn), lags);
+}
+
+/* Ljung-Box (ljung = 1) or Box-Pierce (0). */
+static int portmanteau(const double *x, size_t n, int m, int df_adjust, double alpha,
+                       diag_test *out, int ljung)
+{
+    const char *name = ljung ? "ljung-box" : "box-pierce";
+    int rc = portmanteau_args(name, n, m, df_adjust, alpha, out);
+    if (rc != HN_OK)
+        return rc;
+    int order = diag_share_order(n);
+    int top = m > order ? m : order;
+    double *acf = malloc((size_t)top * sizeof *acf);
+    rc = acf ? diag_acf(x, n, top, acf) : HN_ENOMEM;
+    if (rc != HN_OK) {
+        free(acf);
+        diag_test_invalid(out, name, DIAG_SERIAL,
+                          rc == HN_ECONST ? "the values are constant" :
+                          rc == HN_ENOMEM ? "out of memory" : "a value is not finite");
+        return rc == HN_ENOMEM ? HN_ENOMEM : HN_EINVAL;
+    }
+    portmanteau_fill(acf, n, m, df_adjust, alpha, out, ljung);
+    free(acf);
     return HN_OK;
 }
 
@@ -169,6 +178,35 @@ int diag_ljung_box(const double *x, size_t n, int m, int df_adjust, double alpha
 int diag_box_pierce(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out)
 {
     return portmanteau(x, n, m, df_adjust, alpha, out, 0);
+}
+
+/* The same from a given ACF (NLAGS lags, at least max(m, share order)). */
+static int portmanteau_acf(const double *acf, int nlags, size_t n, int m, int df_adjust,
+                           double alpha, diag_test *out, int ljung)
+{
+    const char *name = ljung ? "ljung-box" : "box-pierce";
+    int rc = portmanteau_args(name, n, m, df_adjust, alpha, out);
+    if (rc != HN_OK)
+        return rc;
+    int order = diag_share_order(n);
+    if (!acf || nlags < m || nlags < order) {
+        diag_test_invalid(out, name, DIAG_SERIAL, "the autocorrelations given are too few");
+        return HN_EINVAL;
+    }
+    portmanteau_fill(acf, n, m, df_adjust, alpha, out, ljung);
+    return HN_OK;
+}
+
+int diag_ljung_box_acf(const double *acf, int nlags, size_t n, int m, int df_adjust,
+                       double alpha, diag_test *out)
+{
+    return portmanteau_acf(acf, nlags, n, m, df_adjust, alpha, out, 1);
+}
+
+int diag_box_pierce_acf(const double *acf, int nlags, size_t n, int m, int df_adjust,
+                        double alpha, diag_test *out)
+{
+    return portmanteau_acf(acf, nlags, n, m, df_adjust, alpha, out, 0);
 }
 
 /* Upper tail of Kolmogorov's limiting distribution,
@@ -398,7 +436,8 @@ static int periodogram(double *d, size_t n, size_t q, double *I)
  * to Kolmogorov's limiting distribution with Stephens' finite-sample factor
  * sqrt(M) + 0.12 + 0.11/sqrt(M), M = q-1 (Stephens, M. A. (1970), J. R.
  * Statist. Soc. B 32, 115-122; factor recalled from memory). */
-int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out)
+static int cum_periodogram(const double *x, size_t n, double alpha, diag_test *out,
+                           const double *acf_given, int acf_given_lags)
 {
     static const char name[] = "cum-periodogram";
     if (bad_alpha(alpha)) {
@@ -466,18 +505,29 @@ int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out
     /* Practical size as for the portmanteau tests. */
     {
         int order = diag_share_order(n);
-        double *acf = malloc((size_t)(order > 0 ? order : 1) * sizeof *acf);
-        double *pacf = malloc((size_t)(order > 0 ? order : 1) * sizeof *pacf);
-        if (acf && pacf && order >= 1 && diag_acf(x, n, order, acf) == HN_OK &&
-            diag_pacf(acf, order, pacf) == HN_OK) {
+        double pacf[DIAG_SHARE_MAX], own[DIAG_SHARE_MAX];
+        if (order >= 1 && order <= DIAG_SHARE_MAX && acf_given && acf_given_lags < order)
+            acf_given = NULL;
+        if (order >= 1 && order <= DIAG_SHARE_MAX &&
+            (acf_given || diag_acf(x, n, order, own) == HN_OK) &&
+            diag_pacf(acf_given ? acf_given : own, order, pacf) == HN_OK) {
             out->effect = diag_predictable_share(pacf, order, n);
             out->effect_label = SERIAL_EFFECT;
         }
-        free(acf);
-        free(pacf);
     }
 done:
     free(d);
     free(I);
     return rc;
+}
+
+int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out)
+{
+    return cum_periodogram(x, n, alpha, out, NULL, 0);
+}
+
+int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int nlags,
+                             double alpha, diag_test *out)
+{
+    return cum_periodogram(x, n, alpha, out, acf, nlags);
 }

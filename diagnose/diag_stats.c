@@ -251,12 +251,17 @@ int diag_acf_fft(const double *x, size_t n, int maxlag, double *acf)
     return HN_OK;
 }
 
+int diag_acf_is_direct(size_t n, int maxlag)
+{
+    double lg = log2((double)fft_length(n));
+    return (double)maxlag + 1.0 <= 3.0 * lg;
+}
+
 int diag_acf(const double *x, size_t n, int maxlag, double *acf)
 {
     if (n < 2)
         return HN_ESHORT;
-    double lg = log2((double)fft_length(n));
-    if ((double)maxlag + 1.0 <= 3.0 * lg)
+    if (diag_acf_is_direct(n, maxlag))
         return diag_acf_direct(x, n, maxlag, acf);
     return diag_acf_fft(x, n, maxlag, acf);
 }
@@ -316,8 +321,8 @@ int diag_share_order(size_t n)
     if (n < 3)
         return 0;
     size_t k = n / 10;
-    if (k > 20)
-        k = 20;
+    if (k > DIAG_SHARE_MAX)
+        k = DIAG_SHARE_MAX;
     if (k < 1)
         k = 1;
     if (k > n - 2)

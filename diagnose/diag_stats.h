@@ -36,6 +36,10 @@ int diag_center(const double *x, size_t n, double *d);
  * Returns HN_OK; HN_EINVAL when maxlag < 1 or maxlag > n - 1; HN_ESHORT when
  * n < 2; HN_ECONST when the values are all equal; HN_ENOMEM; HN_ENUMERIC. */
 int diag_acf(const double *x, size_t n, int maxlag, double *acf);
+/* 1 when diag_acf takes the direct sum for N values and MAXLAG lags, else 0.
+ * The direct sum's lag k does not depend on maxlag, so on that route the
+ * first k values of a longer ACF equal a shorter one's bit for bit. */
+int diag_acf_is_direct(size_t n, int maxlag);
 /* Direct lagged products with compensated sums: O(n maxlag). */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf);
 /* GSL radix-2 real FFT of the centred series zero-padded to the power of two
@@ -62,6 +66,7 @@ double diag_predictable_share(const double *pacf, int order, size_t n_obs);
 /* The long-autoregression order the battery uses for that share:
  * min(20, n/10), at least 1 and at most n - 2 (0 when n < 3). */
 int diag_share_order(size_t n);
+#define DIAG_SHARE_MAX 20   /* the largest order diag_share_order returns */
 
 /* Upper tail of Kolmogorov's limiting distribution of sqrt(n) D_n:
  * Q(l) = 2 sum_{k>=1} (-1)^(k-1) exp(-2 k^2 l^2), 1 for l <= 0.  Used for
