@@ -279,10 +279,11 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
 {
     size_t m = n / 2, L = smooth_length(2 * m - 1);
     double *a = calloc(2 * L, sizeof *a), *b = calloc(2 * L, sizeof *b);
+    double *ch = malloc(2 * m * sizeof *ch);   /* the chirp, kept for the outer one */
     gsl_fft_complex_wavetable *wt = gsl_fft_complex_wavetable_alloc(L);
     gsl_fft_complex_workspace *ws = gsl_fft_complex_workspace_alloc(L);
     int rc = HN_OK;
-    if (!a || !b || !wt || !ws) {
+    if (!a || !b || !ch || !wt || !ws) {
         rc = HN_ENOMEM;
         goto done;
     }
@@ -294,8 +295,8 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
         double c = cos(th), sn = sin(th), zr = d[2 * t], zi = d[2 * t + 1];
         a[2 * t] = zr * c + zi * sn;
         a[2 * t + 1] = zi * c - zr * sn;
-        b[2 * t] = c;
-        b[2 * t + 1] = sn;
+        b[2 * t] = ch[2 * t] = c;
+        b[2 * t + 1] = ch[2 * t + 1] = sn;
         if (t > 0) {
             b[2 * (L - t)] = c;
             b[2 * (L - t) + 1] = sn;
@@ -317,9 +318,7 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
     }
     /* Z_k = exp(-i pi k^2 / m) * convolution_k, for k = 0..m-1, in place */
     for (size_t k = 0; k < m; k++) {
-        unsigned long long kk = ((unsigned long long)k * (unsigned long long)k) % two_m;
-        double th = M_PI * (double)kk / (double)m;
-        double c = cos(th), sn = sin(th), re = a[2 * k], im = a[2 * k + 1];
+        double c = ch[2 * k], sn = ch[2 * k + 1], re = a[2 * k], im = a[2 * k + 1];
         a[2 * k] = re * c + im * sn;
         a[2 * k + 1] = im * c - re * sn;
     }
@@ -336,6 +335,7 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
 done:
     free(a);
     free(b);
+    free(ch);
     if (wt)
         gsl_fft_complex_wavetable_free(wt);
     if (ws)
