@@ -72,6 +72,15 @@ int main(int argc, char **argv)
             return 2;
         }
     }
+    if (commands) {
+        const char *p = commands;
+        while (*p == ' ' || *p == '\t' || *p == ';')
+            p++;
+        if (!*p) {
+            fprintf(stderr, "hone: -c was given no commands\n");
+            return 2;
+        }
+    }
     if (file && commands) {
         fprintf(stderr, "hone: give either a command file or -c, not both\n");
         return 2;
