@@ -243,8 +243,9 @@ static const double start_ab[][2] = {
 
 /* Standard errors at the estimate: Hessian of minus the log-likelihood by
  * differences of the analytic gradient in scaled natural parameters, and the
- * sandwich H^-1 (G'G) H^-1 with G the per-observation scores. */
-static int standard_errors(garch_ctx *c, const double *th, fit_result *r)
+ * sandwich H^-1 (G'G) H^-1 with G the per-observation scores; OPG holds G'G at TH
+ * from the caller's pass (NULL: computed here). */
+static int standard_errors(garch_ctx *c, const double *th, fit_result *r, const double *opg)
 {
     fit_garch_work *w = &c->w;
     const int np = w->np;
@@ -282,7 +283,10 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r)
     }
     if (rc == HN_OK) {
         double ll;
-        rc = fit_garch_loglik(w, th, &ll, NULL, NULL, B);
+        if (opg)
+            memcpy(B, opg, nn * sizeof *B);
+        else
+            rc = fit_garch_loglik(w, th, &ll, NULL, NULL, B);
     }
     if (rc == HN_OK) {
         /* B = sum_t s_t s_t' in theta, then in u (times the scales). */
@@ -328,7 +332,18 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     const int io = w->i_omega, np = w->np;
     const size_t N = w->N;
     double ll;
-    int rc = fit_garch_loglik(w, th, &ll, NULL, NULL, NULL);
+    /* One pass gives the log-likelihood, e_t and sigma2_t at TH and the outer
+     * product of the scores there, which the sandwich needs (the same
+     * numbers as a pass of its own after the Hessian's). */
+    double *opg = malloc((size_t)np * (size_t)np * sizeof *opg);
+    if (!opg)
+        return HN_ENOMEM;
+    int rc = fit_garch_loglik(w, th, &ll, NULL, NULL, opg);
+    if (rc != HN_OK) {
+        free(opg);
+        opg = NULL;
+        rc = fit_garch_loglik(w, th, &ll, NULL, NULL, NULL);
+    }
     if (rc != HN_OK)
         return HN_ENUMERIC;
     memcpy(r->par, th, (size_t)np * sizeof *th);
@@ -353,9 +368,10 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     if (w->has_nu && (th[np - 1] > NU_WARN_HIGH || th[np - 1] < NU_WARN_LOW))
         r->warnings |= FIT_WARN_NU_BOUND;
     rc = fit_result_roots(r);
-    if (rc != HN_OK)
-        return rc;
-    return standard_errors(c, th, r);
+    if (rc == HN_OK)
+        rc = standard_errors(c, th, r, opg);
+    free(opg);
+    return rc;
 }
 
 /* Preconditioned objective: x = x0 + L^-T z, so that a Hessian close to
