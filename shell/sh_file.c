@@ -2,6 +2,7 @@
 #include "sh_file.h"
 
 #include <errno.h>
+#include <limits.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
@@ -19,14 +20,29 @@ int sh_outfile_open(sh_outfile *o, const char *path, char *err, size_t errlen)
         snprintf(err, errlen, "%s is a directory", path);
         return -1;
     }
-    snprintf(o->path, sizeof o->path, "%s", path);
-    snprintf(o->tmp, sizeof o->tmp, "%s.tmp-XXXXXX", path);
+    /* Write beside the real file when PATH is a symbolic link, so the link
+     * survives, and keep an existing file's permission bits. */
+    char real[PATH_MAX];
+    mode_t mode = 0644;
+    const char *target = path;
+    if (lstat(path, &st) == 0) {
+        if (S_ISLNK(st.st_mode) && realpath(path, real))
+            target = real;
+        if (stat(target, &st) == 0)
+            mode = st.st_mode & 07777;
+    }
+    if (strlen(target) >= sizeof o->path) {
+        snprintf(err, errlen, "output file name too long");
+        return -1;
+    }
+    snprintf(o->path, sizeof o->path, "%s", target);
+    snprintf(o->tmp, sizeof o->tmp, "%s.tmp-XXXXXX", target);
     int fd = mkstemp(o->tmp);
     if (fd < 0) {
         snprintf(err, errlen, "cannot write %s: %s", path, strerror(errno));
         return -1;
     }
-    fchmod(fd, 0644);
+    fchmod(fd, mode);
     o->f = fdopen(fd, "w");
     if (!o->f) {
         close(fd);

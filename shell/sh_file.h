@@ -1,6 +1,7 @@
 /* sh_file.h - output files written atomically: a temporary file beside the
  * target, renamed over it only when complete, so an error never truncates
- * an existing file. */
+ * an existing file.  An existing file keeps its permission bits; a symbolic
+ * link keeps pointing at the (replaced) file it names. */
 #ifndef SH_FILE_H
 #define SH_FILE_H
 
@@ -9,8 +10,8 @@
 
 typedef struct {
     FILE *f;              /* write here */
-    char path[1024];      /* final name */
-    char tmp[1100];       /* temporary name */
+    char path[4096];      /* final name */
+    char tmp[4200];       /* temporary name */
 } sh_outfile;
 
 /* Open a temporary file for PATH.  0, or -1 with a message in ERR. */
