@@ -61,6 +61,14 @@ void fit_arma_ws_free(fit_arma_ws *w)
     free(w);
 }
 
+/* Loops over the parameters unroll in full in the fixed-count copies below
+ * (a hint only; the order of the operations stays as written). */
+#if defined(__GNUC__)
+#define UNROLL _Pragma("GCC unroll 16")
+#else
+#define UNROLL
+#endif
+
 /* The residual pass behind fit_arma_resid for OFF mean, NAR autoregressive
  * and NMA moving-average terms; JTJ (may be NULL) also receives
  * sum de_t de_t' (nm x nm), the Gauss-Newton matrix of SSR / 2. */
@@ -138,7 +146,9 @@ resid_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, double
         }
         if (jtj) {
             size_t idx = 0;
+            UNROLL
             for (int k = 0; k < nm; k++)
+                UNROLL
                 for (int l = 0; l <= k; l++, idx++)
                     jacc[idx] += d[k] * d[l];
         }
@@ -294,9 +304,11 @@ hessian_body(fit_arma_ws *w, const double *y, size_t n, const double *mpar, doub
                 h2[(size_t)k * (size_t)(k + 1) / 2 + (size_t)q] -= pd[k];
         }
         size_t idx = 0;
+        UNROLL
         for (int k = 0; k < nm; k++) {
             acc[k] += et * d[k];
             const double dk = d[k];
+            UNROLL
             for (int l = 0; l <= k; l++, idx++) {
                 double dd = dk * d[l];
                 jacc[idx] += dd;

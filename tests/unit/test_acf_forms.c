@@ -1,0 +1,114 @@
+/* test_acf_forms.c - the ACF-taking forms of Ljung-Box, Box-Pierce, McLeod-Li and the cumulative periodogram. */
+#include "testutil.h"
+#include "diag_checks.h"
+#include "diag_stats.h"
+#include "hn_status.h"
+
+#include <string.h>
+
+/* Read column COL of REL under the reference directory into *X. */
+static size_t ref_column(const char *ref, const char *rel, int col, double **x)
+{
+    char path[4096];
+    int w = snprintf(path, sizeof path, "%s/%s", ref, rel);
+    assert_true(w > 0 && (size_t)w < sizeof path);
+    size_t n = tu_read_column(path, col, x);
+    assert_true(n > 0);
+    return n;
+}
+
+/* Two results of one check must agree in every field the battery reports. */
+static void same_test(const diag_test *a, const diag_test *b)
+{
+    assert_string_equal(a->name, b->name);
+    assert_int_equal(a->valid, b->valid);
+    assert_int_equal(a->pass, b->pass);
+    assert_memory_equal(&a->statistic, &b->statistic, sizeof a->statistic);
+    assert_memory_equal(&a->df, &b->df, sizeof a->df);
+    assert_memory_equal(&a->p, &b->p, sizeof a->p);
+    assert_memory_equal(&a->effect, &b->effect, sizeof a->effect);
+    assert_string_equal(a->detail, b->detail);
+}
+
+/* Series F (n = 70): the ACF the forms are given is diag_acf's, which must
+ * first reproduce the e-Handbook's published ACF (lags 1-35, 9 decimals;
+ * reference/box-jenkins-series-f/ehandbook_acf_lags1to35.csv); then each
+ * form given that ACF must report exactly what the X-taking form reports. */
+static void test_series_f(void **state)
+{
+    (void)state;
+    TU_NEED_REF(ref);
+    double *y = NULL, *want = NULL;
+    size_t n = ref_column(ref, "box-jenkins-series-f/series_f.csv", 1, &y);
+    assert_int_equal(n, 70);
+    size_t nw = ref_column(ref, "box-jenkins-series-f/ehandbook_acf_lags1to35.csv", 1, &want);
+    assert_int_equal(nw, 35);
+    int top = 20;
+    assert_true(diag_acf_is_direct(n, top));
+    double acf[20];
+    assert_int_equal(diag_acf(y, n, top, acf), HN_OK);
+    for (int k = 0; k < top; k++)
+        TU_NEAR(acf[k], want[k], 6e-10);   /* half a unit in the 9th decimal */
+
+    diag_test a, b;
+    for (int m = 1; m <= top; m++) {
+        for (int adj = 0; adj < 3 && adj < m; adj++) {
+            assert_int_equal(diag_ljung_box(y, n, m, adj, 0.05, &a), HN_OK);
+            assert_int_equal(diag_ljung_box_acf(acf, top, n, m, adj, 0.05, &b), HN_OK);
+            same_test(&a, &b);
+            assert_int_equal(diag_box_pierce(y, n, m, adj, 0.05, &a), HN_OK);
+            assert_int_equal(diag_box_pierce_acf(acf, top, n, m, adj, 0.05, &b), HN_OK);
+            same_test(&a, &b);
+        }
+    }
+    assert_int_equal(diag_cum_periodogram(y, n, 0.05, &a), HN_OK);
+    assert_int_equal(diag_cum_periodogram_acf(y, n, acf, top, 0.05, &b), HN_OK);
+    same_test(&a, &b);
+
+    /* Refusals: too few lags given, and the usual argument checks first. */
+    assert_int_equal(diag_ljung_box_acf(acf, 5, n, 10, 0, 0.05, &b), HN_EINVAL);
+    assert_int_equal(b.valid, 0);
+    assert_int_equal(diag_box_pierce_acf(acf, top, n, 3, 3, 0.05, &b), HN_EINVAL);
+    assert_int_equal(diag_ljung_box_acf(acf, top, 2, 1, 0, 0.05, &b), HN_ESHORT);
+    free(y);
+    free(want);
+}
+
+/* DM/BP returns (n = 1974, reference/bollerslev-ghysels-dmbp): McLeod-Li
+ * from the ACF of the squares equals the X-taking form; the returns show
+ * strong volatility clustering (common practice for daily exchange rates),
+ * so the test must reject at 5%. */
+static void test_dmbp_squares(void **state)
+{
+    (void)state;
+    TU_NEED_REF(ref);
+    double *r = NULL;
+    size_t n = ref_column(ref, "bollerslev-ghysels-dmbp/dmbp_returns.csv", 1, &r);
+    assert_int_equal(n, 1974);
+    double *sq = malloc(n * sizeof *sq), acf2[30];
+    assert_non_null(sq);
+    for (size_t i = 0; i < n; i++)
+        sq[i] = r[i] * r[i];
+    assert_true(diag_acf_is_direct(n, 30));
+    assert_int_equal(diag_acf(sq, n, 30, acf2), HN_OK);
+    diag_test a, b;
+    for (int m = 1; m <= 30; m++) {
+        assert_int_equal(diag_mcleod_li(r, n, m, 0.05, &a), HN_OK);
+        assert_int_equal(diag_mcleod_li_acf(acf2, 30, n, m, 0.05, &b), HN_OK);
+        same_test(&a, &b);
+    }
+    assert_int_equal(a.pass, 0);
+    assert_int_equal(diag_mcleod_li_acf(acf2, 9, n, 10, 0.05, &b), HN_EINVAL);
+    assert_int_equal(diag_mcleod_li_acf(acf2, 30, 11, 10, 0.05, &b), HN_ESHORT);
+    free(sq);
+    free(r);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_series_f),
+        cmocka_unit_test(test_dmbp_squares),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
