@@ -10,6 +10,8 @@
 #include "diag_stats.h"
 #include "hn_status.h"
 
+#define COLUMN_BLOCK 8   /* column sums computed side by side in one sweep */
+
 /* Squares of the series as given (SQ: n values, caller allocates); the
  * checks run on residuals, and a mean away from zero is the mean check's
  * business.  HN_ENUMERIC when a value is not finite. */
@@ -118,6 +120,56 @@ int diag_mcleod_li_acf(const double *acf2, int nlags, size_t n, int m, double al
     return HN_OK;
 }
 
+/* Sums over t = q..n-1 of sq[t - j0 - i] (M NULL) or of sq[t - j0 - i] -
+ * M[i] into OUT[i], i < CNT: each a plain sum in the order of t, the CNT of
+ * them side by side in one sweep. */
+static inline __attribute__((always_inline)) void
+column_sweep(const double *sq, size_t n, size_t q, size_t j0, const double *m, double *out,
+             const size_t cnt)
+{
+    double acc[COLUMN_BLOCK], mm[COLUMN_BLOCK];
+    for (size_t i = 0; i < cnt; i++) {
+        acc[i] = 0.0;
+        mm[i] = m ? m[i] : 0.0;
+    }
+    const double *base = sq - j0;
+    if (m) {
+        for (size_t t = q; t < n; t++)
+            for (size_t i = 0; i < cnt; i++)
+                acc[i] += base[t - i] - mm[i];
+    } else {
+        for (size_t t = q; t < n; t++)
+            for (size_t i = 0; i < cnt; i++)
+                acc[i] += base[t - i];
+    }
+    for (size_t i = 0; i < cnt; i++)
+        out[i] = acc[i];
+}
+
+/* MEAN[j], j = 0..q: the mean of sq[t - j] over t = q..n-1, by a plain sum,
+ * then the plain sum of the deviations from it as a correction (the same
+ * operations as one column at a time, COLUMN_BLOCK columns a sweep). */
+static void column_means(const double *sq, size_t n, size_t q, double *mean)
+{
+    const double rows = (double)(n - q);
+    for (size_t j0 = 0; j0 <= q; j0 += COLUMN_BLOCK) {
+        size_t cnt = q + 1 - j0 < COLUMN_BLOCK ? q + 1 - j0 : COLUMN_BLOCK;
+        double m[COLUMN_BLOCK], r[COLUMN_BLOCK];
+        if (cnt == 6)           /* the default 5 lags and the regressand */
+            column_sweep(sq, n, q, j0, NULL, m, 6);
+        else
+            column_sweep(sq, n, q, j0, NULL, m, cnt);
+        for (size_t i = 0; i < cnt; i++)
+            m[i] /= rows;
+        if (cnt == 6)
+            column_sweep(sq, n, q, j0, m, r, 6);
+        else
+            column_sweep(sq, n, q, j0, m, r, cnt);
+        for (size_t i = 0; i < cnt; i++)
+            mean[j0 + i] = m[i] + r[i] / rows;
+    }
+}
+
 /* Centred least squares of Y = SQ[q..n-1] on its Q lags and a constant:
  * the normal equations of the mean-removed lags (Cholesky, LAPACKE_dposv)
  * followed by one step of iterative refinement on the residuals, which
@@ -128,18 +180,10 @@ int diag_mcleod_li_acf(const double *acf2, int nlags, size_t n, int m, double al
  * doubles.  Returns HN_OK or HN_ESINGULAR (lags collinear). */
 static int lag_regression(const double *sq, size_t n, size_t q, double *b, double *work)
 {
-    size_t rows = n - q;
     double *mean = work, *c = mean + q + 1, *g = c + q * q;
-    /* column means, two passes with the correction term */
-    for (size_t j = 0; j <= q; j++) {
-        double m = 0.0, r = 0.0;
-        for (size_t t = q; t < n; t++)
-            m += sq[t - j];
-        m /= (double)rows;
-        for (size_t t = q; t < n; t++)
-            r += sq[t - j] - m;
-        mean[j] = m + r / (double)rows;   /* mean[0]: regressand, mean[j]: lag j */
-    }
+    /* column means, two passes with the correction term; mean[0]: regressand,
+     * mean[j]: lag j */
+    column_means(sq, n, q, mean);
     for (size_t k = 0; k < q * q; k++)
         c[k] = 0.0;
     for (size_t j = 0; j < q; j++)

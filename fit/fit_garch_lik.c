@@ -64,6 +64,14 @@ void fit_garch_work_free(fit_garch_work *w)
     w->aw = NULL;
 }
 
+/* Loops over the parameters unroll in full in the fixed-count copies (a
+ * hint only; the order of the operations stays as written). */
+#if defined(__GNUC__)
+#define UNROLL _Pragma("GCC unroll 16")
+#else
+#define UNROLL
+#endif
+
 /* The pass behind fit_garch_loglik for KM mean parameters and Student-t
  * (HAS_NU = 1) or normal innovations; the caller has counted the pass and
  * checked TH.  Sums and derivatives live in locals (no aliasing with the
@@ -144,6 +152,7 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
         if (want_d) {
             /* d sigma2_t = [mean: alpha d e2_{t-1}; omega 1; alpha e2_{t-1};
              *               beta sigma2_{t-1}] + beta d sigma2_{t-1} */
+            UNROLL
             for (int c = 0; c < km; c++)
                 dh[c] = alpha * de2[c] + beta * dh[c];
             dh[km] = 1.0 + beta * dh[km];
@@ -151,18 +160,24 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
             dh[km + 2] = hprev + beta * dh[km + 2];
             const double *d = dev + i * (size_t)km;
             double *row = scores ? scores + i * (size_t)np : rowl;
+            UNROLL
             for (int c = 0; c < km; c++)
                 row[c] = dl_dh * dh[c] + dl_de * d[c];
+            UNROLL
             for (int c = km; c < kv; c++)
                 row[c] = dl_dh * dh[c];
             if (has_nu)
                 row[np - 1] = dl_dnu;
+            UNROLL
             for (int c = 0; c < np; c++)
                 g[c] += row[c];
             if (opg)
+                UNROLL
                 for (int a = 0; a < np; a++)
+                    UNROLL
                     for (int b = 0; b <= a; b++)
                         opg[a * np + b] += row[a] * row[b];
+            UNROLL
             for (int c = 0; c < km; c++)
                 de2[c] = 2.0 * e * d[c];
         }
