@@ -19,6 +19,11 @@ typedef struct {
     const char *help;                     /* paragraph for 'help NAME' */
 } sh_command;
 
+/* An options list of just SH_FREE_TEXT marks a command whose words are text:
+ * KEY=VALUE is not parsed and every word counts as an argument. */
+#define SH_FREE_TEXT "*"
+int sh_command_free_text(const sh_command *c);
+
 /* The table and its length. */
 const sh_command *sh_command_table(int *n);
 /* Exact name, or a unique prefix of at least 2 letters; NULL otherwise. */

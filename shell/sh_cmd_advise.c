@@ -124,7 +124,7 @@ static int cmd_step(sh_session *s, sh_words *w)
     if (!top)
         return sh_fail(s, -1, "model %d: no proposal to fit%s%s", from, a.n ? ": " : "",
                        a.n ? a.item[0].reason : "");
-    char origin[256];
+    char origin[512];
     snprintf(origin, sizeof origin, "step on model %d: %.200s", from, top->reason);
     int id = 0;
     int rc = sh_fit_and_check(s, &top->spec, from, origin, &id);

@@ -65,7 +65,7 @@ static int cmd_record(sh_session *s, sh_words *w)
 static int cmd_note(sh_session *s, sh_words *w)
 {
     int n;
-    if (sh_nargs(w) == 0) {
+    if (w->n <= 1) {
         const sh_note *v = sh_notes_get(s, &n);
         if (!n)
             sh_printf(s, "no notes yet (note TEXT adds one)\n");
@@ -82,9 +82,9 @@ static int cmd_note(sh_session *s, sh_words *w)
         return 0;
     }
     char text[2048] = "";
-    for (int k = 0, i; (i = sh_arg(w, k)) >= 0; k++) {
+    for (int i = 1; i < w->n; i++) {      /* free text: every word, '=' included */
         size_t l = strlen(text);
-        snprintf(text + l, sizeof text - l, "%s%s", k ? " " : "", w->word[i]);
+        snprintf(text + l, sizeof text - l, "%s%s", i > 1 ? " " : "", w->word[i]);
     }
     int model = s->current >= 0 && s->current < s->nmodels ? s->models[s->current].id : 0;
     if (sh_notes_add(s, model, text))
@@ -217,6 +217,7 @@ static void adopt(sh_session *s, sh_session *t)
     free(s->raw);
     free(s->y);
     fit_forecast_free(s->last_forecast);
+    sh_notes_clear(s);              /* T's notes come with the struct copy below */
     sh_session keep = *s;
     sh_json_free(&t->j);
     if (t->journal)
@@ -234,7 +235,6 @@ static void adopt(sh_session *s, sh_session *t)
     s->quit = 0;
     memcpy(s->err, keep.err, sizeof s->err);
     s->err_word = keep.err_word;
-    sh_notes_move(s, t);
     memset(t, 0, sizeof *t);
 }
 
@@ -458,9 +458,9 @@ const sh_command sh_cmds_audit[] = {
       "  alone says where the session is recording.  hone --record FILE does\n"
       "  the same from the first command.\n" },
     { "note", "note [TEXT...]", "keep the analyst's own words in the journal and the report",
-      { NULL }, 0, 60, cmd_note,
+      { SH_FREE_TEXT, NULL }, 0, 60, cmd_note,
       "  The note is tied to the current model.  'note' alone lists the notes.\n"
-      "  Words holding '=' read as options: write 'mean is 0' rather than 'mean=0'.\n" },
+      "  Everything after 'note' is kept as written, '=' included.\n" },
     { "replay", "replay JOURNAL [verify]", "re-run the commands of a journal; verify compares every output",
       { NULL }, 1, 2, cmd_replay,
       "  The input files are checked against the journal's SHA-256 first; if\n"

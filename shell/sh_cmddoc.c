@@ -17,7 +17,7 @@ int sh_cmddoc_markdown(FILE *f)
         fprintf(f, "\n### %s\n\n```\n%s\n```\n\n%c%s.\n", c->name, c->usage,
                 c->summary[0] >= 'a' && c->summary[0] <= 'z' ? c->summary[0] - 'a' + 'A' : c->summary[0],
                 c->summary + 1);
-        if (c->options[0]) {
+        if (c->options[0] && !sh_command_free_text(c)) {
             fprintf(f, "\nOptions:");
             for (int o = 0; o < SH_MAX_OPTIONS && c->options[o]; o++)
                 fprintf(f, "%s `%s=`", o ? "," : "", c->options[o]);

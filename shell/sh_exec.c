@@ -2,6 +2,7 @@
 #include "sh_session.h"
 #include "sh_cmd.h"
 #include "sh_journal.h"
+#include "sh_notes.h"
 #include "hn_status.h"
 #include "fit_forecast.h"
 
@@ -34,6 +35,7 @@ void sh_session_free(sh_session *s)
     for (int i = 0; i < s->nmodels; i++)
         free_model(&s->models[i]);
     free(s->models);
+    sh_notes_clear(s);
     fit_forecast_free(s->last_forecast);
     free(s->raw);
     free(s->y);
@@ -142,9 +144,15 @@ int sh_nargs(const sh_words *w)
     return c;
 }
 
+int sh_command_free_text(const sh_command *c)
+{
+    return c->options[0] && !strcmp(c->options[0], SH_FREE_TEXT);
+}
+
 int sh_command_check(sh_session *s, const sh_command *c, sh_words *w)
 {
-    for (int i = 1; i < w->n; i++) {
+    int free_text = sh_command_free_text(c);
+    for (int i = 1; i < w->n && !free_text; i++) {
         const char *eq = strchr(w->word[i], '=');
         if (!eq)
             continue;
@@ -166,7 +174,7 @@ int sh_command_check(sh_session *s, const sh_command *c, sh_words *w)
             if (!strncmp(w->word[j], w->word[i], k + 1))
                 return sh_fail(s, i, "option '%.*s' given twice", (int)k, w->word[i]);
     }
-    int na = sh_nargs(w);
+    int na = free_text ? w->n - 1 : sh_nargs(w);
     if (na < c->min_args || na > c->max_args)
         return sh_fail(s, na > c->max_args ? sh_arg(w, c->max_args) : -1,
                        "%s takes %s; usage: %s", c->name,

@@ -91,6 +91,21 @@ sh_journal *sh_journal_open(const char *path, const sh_session *s, char *err, si
         snprintf(err, errlen, "%s is a directory, not a journal file", path);
         return NULL;
     }
+    /* Only an earlier journal may be replaced: a typo must not destroy data. */
+    if (stat(path, &st) == 0 && st.st_size > 0) {
+        FILE *old = fopen(path, "r");
+        char head[32] = "";
+        if (old) {
+            if (!fgets(head, sizeof head, old))
+                head[0] = '\0';
+            fclose(old);
+        }
+        if (strncmp(head, "hone-journal ", 13)) {
+            snprintf(err, errlen, "%s exists and is not a hone journal; refusing to overwrite it "
+                     "(choose another name or remove the file)", path);
+            return NULL;
+        }
+    }
     sh_journal *j = calloc(1, sizeof *j);
     if (!j) {
         snprintf(err, errlen, "out of memory");

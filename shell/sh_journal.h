@@ -38,7 +38,8 @@ typedef struct {
 } sh_journal_file;
 struct sh_session;
 
-/* Create PATH (replacing an existing file) and write the header.  NULL on
+/* Create PATH and write the header.  An existing file is replaced only when
+ * it is empty or itself a journal; anything else is refused.  NULL on
  * failure with a message in ERR. */
 sh_journal *sh_journal_open(const char *path, const struct sh_session *s, char *err, size_t errlen);
 /* Record a command, its text output, and ERROR (NULL on success). */

@@ -202,7 +202,7 @@ int sh_refine(sh_session *s, const sh_refine_options *opt, sh_refine_result *r)
             const diag_advice *a = &adv.item[i];
             if (!a->has_spec)
                 continue;
-            char origin[256];
+            char origin[512];
             snprintf(origin, sizeof origin, "refine on model %d: %.200s", cur_id, a->reason);
             int id = 0;
             rc = sh_fit_and_check(s, &a->spec, cur_id, origin, &id);

@@ -182,7 +182,7 @@ static char **complete(const char *text, int start, int end)
         rl_completion_append_character = ' ';
         return rl_completion_matches(text, column_generator);
     }
-    if (completing_cmd && completing_cmd->options[0] && !strchr(text, '/') && !strchr(text, '.')) {
+    if (completing_cmd && completing_cmd->options[0] && !sh_command_free_text(completing_cmd) && !strchr(text, '/') && !strchr(text, '.')) {
         char **m = rl_completion_matches(text, option_generator);
         if (m) {
             rl_attempted_completion_over = 1;

@@ -413,7 +413,7 @@ void sh_text_models(sh_session *s)
         const sh_model *m = &s->models[i];
         fit_spec_format(&m->fit.spec, spec, sizeof spec);
         criteria_words(m, crit, sizeof crit);
-        char origin[300];
+        char origin[600];
         if (m->parent)
             snprintf(origin, sizeof origin, "from %d: %s", m->parent, m->origin);
         else

@@ -15,6 +15,7 @@
 #include "diag_battery.h"
 #include "sh_json.h"
 #include "sh_parse.h"
+#include "sh_notes.h"
 
 struct sh_journal;
 
@@ -22,7 +23,7 @@ typedef struct {
     int id;                     /* 1-based, stable for the session */
     fit_result fit;
     int parent;                 /* id of the model whose advice proposed it; 0 = none */
-    char origin[256];           /* how it arose, in words */
+    char origin[512];           /* how it arose, in words */
     char series[512];           /* the series it was fitted to (file, column, transforms) */
     int checked;                /* battery below is valid */
     diag_battery battery;
@@ -67,6 +68,8 @@ typedef struct sh_session {
     void *last_forecast;        /* fit_forecast * of the last 'forecast' command (owned), or NULL */
     int last_forecast_model;    /* id of the model it came from */
     int replaying;              /* nesting guard for replay */
+    sh_note *notes;             /* the analyst's notes (sh_notes.h), owned */
+    int nnotes, notes_cap;
 } sh_session;
 
 /* The Ctrl-C flag: the SIGINT handler only sets it; fits poll it. */

@@ -95,6 +95,7 @@ done <<EOF
 2|hone: more than one command file given|a.hone b.hone
 2|hone: give either a command file or -c, not both|-c help $B/line7.hone
 2|hone: cannot write journal /nonexistent-dir/j|--record /nonexistent-dir/j -c help
+2|is not a hone journal; refusing to overwrite it|--record $B/three_rows.csv -c help
 EOF
 
 # --keep-going runs the commands after an error: the last fit of two_errors.hone
