@@ -23,7 +23,6 @@ struct fit_arma_ws {
     size_t mask;     /* ring rows - 1 (rows: a power of two > max MA lag) */
     size_t stride;   /* ring row: e, then nm derivatives */
     double *ring;
-    double *acc;     /* nm gradient accumulators */
     double *ring2;   /* second derivatives: nm * nm a row (fit_arma_hessian) */
 };
 
@@ -43,8 +42,7 @@ fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec)
     w->mask = rows - 1;
     w->stride = (size_t)w->nm + 1;
     w->ring = calloc(rows * w->stride, sizeof *w->ring);
-    w->acc = calloc((size_t)w->nm + 1, sizeof *w->acc);
-    if (!w->ring || !w->acc) {
+    if (!w->ring) {
         fit_arma_ws_free(w);
         return NULL;
     }
@@ -56,7 +54,6 @@ void fit_arma_ws_free(fit_arma_ws *w)
     if (!w)
         return;
     free(w->ring);
-    free(w->acc);
     free(w->ring2);
     free(w);
 }

@@ -44,9 +44,8 @@ int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_
     w->e = malloc(w->N * sizeof *w->e);
     w->h = malloc(w->N * sizeof *w->h);
     w->de = w->k_mean ? malloc(w->N * (size_t)w->k_mean * sizeof *w->de) : NULL;
-    w->tmp = malloc(4 * (size_t)w->np * sizeof *w->tmp);
     w->aw = fit_arma_ws_alloc(spec);
-    if (!w->e || !w->h || (w->k_mean && !w->de) || !w->tmp || !w->aw) {
+    if (!w->e || !w->h || (w->k_mean && !w->de) || !w->aw) {
         fit_garch_work_free(w);
         return HN_ENOMEM;
     }
@@ -58,9 +57,8 @@ void fit_garch_work_free(fit_garch_work *w)
     free(w->e);
     free(w->de);
     free(w->h);
-    free(w->tmp);
     fit_arma_ws_free(w->aw);
-    w->e = w->de = w->h = w->tmp = NULL;
+    w->e = w->de = w->h = NULL;
     w->aw = NULL;
 }
 

@@ -22,7 +22,6 @@ typedef struct {
     double *e;           /* N residuals at the last evaluation */
     double *de;          /* N x k_mean derivatives of e_t (row-major) */
     double *h;           /* N conditional variances at the last evaluation */
-    double *tmp;         /* 4 * np scratch */
     fit_arma_ws *aw;     /* residual recursion workspace */
     long passes;         /* likelihood passes made so far (work counter) */
 } fit_garch_work;
