@@ -71,12 +71,13 @@ void fit_garch_work_free(fit_garch_work *w)
 #endif
 
 /* The pass behind fit_garch_loglik for KM mean parameters and Student-t
- * (HAS_NU = 1) or normal innovations; the caller has counted the pass and
+ * (HAS_NU = 1) or normal innovations, AR_ONLY = 1 when the mean has no MA
+ * terms; the caller has counted the pass and
  * checked TH.  Sums and derivatives live in locals (no aliasing with the
  * output arrays). */
 static inline __attribute__((always_inline)) int
 loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, double *scores,
-            double *opg, const int km, const int has_nu)
+            double *opg, const int km, const int has_nu, const int ar_only)
 {
     const int np = km + 3 + has_nu, io = km;
     const int kv = km + 3;                 /* parameters the variance depends on */
@@ -94,8 +95,23 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
     double g[FIT_MAX_PARAMS];              /* gradient          (np) */
     double rowl[FIT_MAX_PARAMS];           /* this term's scores without SCORES */
     double ssr;
-    int rc = fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
+    int rc = fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d && !ar_only ? w->de : NULL, &ssr,
                             want_d ? de2 : NULL);
+    /* Without MA terms de_t/dtheta_mean is (sum ar - 1, -(y_{t-lag} - mu)...):
+     * formed below as fit_arma_resid forms it, instead of stored and read back. */
+    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar;
+    const double *y0 = w->y + w->start;    /* y_t for residual 0 */
+    double amu = 0.0, admu = 0.0, dloc[FIT_MAX_PARAMS];
+    ptrdiff_t alag[FIT_MAX_TERMS];
+    if (ar_only) {
+        amu = moff ? th[0] : 0.0;
+        double sum_ar = 0.0;
+        for (int k = 0; k < nar; k++) {
+            sum_ar += th[moff + k];
+            alag[k] = (ptrdiff_t)w->spec.ar_lag[k];
+        }
+        admu = sum_ar - 1.0;
+    }
     if (rc != HN_OK)
         return HN_EDOMAIN;
     const double s2 = ssr / (double)N;
@@ -156,7 +172,17 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
             dh[km] = 1.0 + beta * dh[km];
             dh[km + 1] = e2prev + beta * dh[km + 1];
             dh[km + 2] = hprev + beta * dh[km + 2];
-            const double *d = dev + i * (size_t)km;
+            const double *d;
+            if (ar_only) {
+                const double *yt = y0 + i;
+                if (moff)
+                    dloc[0] = admu;
+                for (int k = 0; k < nar; k++)
+                    dloc[moff + k] = -(yt[-alag[k]] - amu);
+                d = dloc;
+            } else {
+                d = dev + i * (size_t)km;
+            }
             double *row = scores ? scores + i * (size_t)np : rowl;
             UNROLL
             for (int c = 0; c < km; c++)
@@ -208,12 +234,17 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
         return HN_EDOMAIN;
     /* copies with the parameter counts fixed at compile time for the
      * common mean models: the same operations in the same order */
+    const int ar = w->spec.n_ma == 0;
 #define LOGLIK_CASE(K) \
-    if (km == (K)) \
-        return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, K, 1) \
-                         : loglik_body(w, th, ll, grad, scores, opg, K, 0);
+    if (km == (K)) { \
+        if (ar) \
+            return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, K, 1, 1) \
+                             : loglik_body(w, th, ll, grad, scores, opg, K, 0, 1); \
+        return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, K, 1, 0) \
+                         : loglik_body(w, th, ll, grad, scores, opg, K, 0, 0); \
+    }
     LOGLIK_CASE(0) LOGLIK_CASE(1) LOGLIK_CASE(2) LOGLIK_CASE(3) LOGLIK_CASE(4)
 #undef LOGLIK_CASE
-    return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, km, 1)
-                     : loglik_body(w, th, ll, grad, scores, opg, km, 0);
+    return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, km, 1, ar)
+                     : loglik_body(w, th, ll, grad, scores, opg, km, 0, ar);
 }
