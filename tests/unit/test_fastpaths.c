@@ -17,56 +17,6 @@ static int cmp_double(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-/* The even-length periodogram route (half-length complex transform, used
- * when n is even and has a prime factor above 97) against the defining sum
- * I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 evaluated term by term (angles
- * reduced mod n), through the Kolmogorov-Smirnov distance of the cumulative
- * periodogram (Bartlett's statistic; the definition, common practice).
- * Lengths 2 x 1009, 4 x 251 and 2 x 4099; Gaussian data from GSL mt19937
- * seed 47 with a period-7 bump so that the distance is not tiny. */
-static void test_periodogram_even_route(void **state)
-{
-    (void)state;
-    const size_t ns[3] = { 2018, 1004, 8198 };
-    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
-    gsl_rng_set(r, 47UL);
-    for (int s = 0; s < 3; s++) {
-        size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
-        double *x = malloc(n * sizeof *x), *I = malloc(q * sizeof *I);
-        assert_non_null(x);
-        assert_non_null(I);
-        double mean = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            x[t] = gsl_ran_gaussian(r, 1.0) + (t % 7 == 0 ? 0.5 : 0.0);
-            mean += x[t];
-        }
-        mean /= (double)n;
-        double total = 0.0;
-        for (size_t j = 1; j <= q; j++) {
-            double re = 0.0, im = 0.0;
-            for (size_t t = 0; t < n; t++) {
-                double th = 2.0 * M_PI * (double)((j * t) % n) / (double)n;
-                re += (x[t] - mean) * cos(th);
-                im -= (x[t] - mean) * sin(th);
-            }
-            I[j - 1] = re * re + im * im;
-            total += I[j - 1];
-        }
-        double cum = 0.0, D = 0.0;
-        for (size_t j = 1; j <= M; j++) {
-            cum += I[j - 1];
-            double c = cum / total;
-            D = fmax(D, fmax((double)j / (double)M - c, c - (double)(j - 1) / (double)M));
-        }
-        diag_test t;
-        assert_int_equal(diag_cum_periodogram(x, n, 0.05, &t), HN_OK);
-        TU_NEAR(t.statistic, D, 1e-10);
-        free(x);
-        free(I);
-    }
-    gsl_rng_free(r);
-}
-
 /* The runs test's median (found by selection) against the median of a full
  * sort, through the number of runs about it (Wald-Wolfowitz: values equal to
  * the median dropped, runs of the signs of the rest; the definition, common
@@ -227,7 +177,6 @@ static void test_csv_numbers_against_strtod(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
-        cmocka_unit_test(test_periodogram_even_route),
         cmocka_unit_test(test_runs_median_by_selection),
         cmocka_unit_test(test_arch_lm_against_svd),
         cmocka_unit_test(test_csv_numbers_against_strtod),

@@ -293,18 +293,20 @@ static void test_detail(void **state)
     assert_true(strlen(d.detail) < sizeof d.detail - 1);
 }
 
-/* Both periodogram routes (GSL mixed radix for n = 1000 = 2^3 5^3; the
- * chirp-z route for the primes n = 1009 and 4099) against the defining sum
+/* Every periodogram route (GSL mixed radix for n = 1000 = 2^3 5^3; the
+ * chirp-z route for the primes n = 1009 and 4099; the half-length complex
+ * transform for even n with a large prime factor, 2 x 1009, 4 x 251 and
+ * 2 x 4099) against the defining sum
  * I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 evaluated term by term here
  * (angles reduced mod n), on Gaussian data (GSL mt19937 seed 31).  The KS
  * distance must agree to 1e-10. */
 static void test_periodogram_routes(void **state)
 {
     (void)state;
-    const size_t ns[3] = { 1000, 1009, 4099 };
+    const size_t ns[6] = { 1000, 1009, 4099, 2018, 1004, 8198 };
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 31UL);
-    for (int s = 0; s < 3; s++) {
+    for (int s = 0; s < 6; s++) {
         size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
         double *x = malloc(n * sizeof *x), *I = malloc(q * sizeof *I);
         assert_non_null(x);
