@@ -85,8 +85,8 @@ static int cmd_advise(sh_session *s, sh_words *w)
         sh_printf(s, "  no rule proposes a change (the failed criteria have no model term in hone)\n");
     for (int i = 0; i < a.n; i++) {
         const diag_advice *it = &a.item[i];
-        sh_printf(s, "  %2d. %s\n      %s\n", it->rank, it->has_spec ? it->spec_text : "(no model to fit)",
-                  it->reason);
+        sh_printf(s, "  %2d. %s\n      ", it->rank, it->has_spec ? it->spec_text : "(no model to fit)");
+        sh_wrap(s, it->reason, 6);
     }
     if (a.dropped)
         sh_printf(s, "  left out: %d proposal%s (first: %s)\n", a.dropped, a.dropped == 1 ? "" : "s",
@@ -133,7 +133,8 @@ static int cmd_step(sh_session *s, sh_words *w)
     if (rc != HN_OK && !id)
         return sh_fail(s, -1, "cannot fit %s: %s", top->spec_text, hn_strerror(rc));
     sh_model *nm = &s->models[id - 1];
-    sh_printf(s, "step from model %d, advice %d: %s\n  %s\n", from, top->rank, top->spec_text, top->reason);
+    sh_printf(s, "step from model %d, advice %d: %s\n  ", from, top->rank, top->spec_text);
+    sh_wrap(s, top->reason, 2);
     sh_text_fit(s, nm);
     sh_json_kint(&s->j, "from", from);
     sh_json_key(&s->j, "advice");
@@ -230,7 +231,8 @@ static int cmd_refine(sh_session *s, sh_words *w)
         sh_json_kint(j, "first", st->first_id);
         sh_json_kint(j, "last", st->last_id);
         if (st->chosen_id) {
-            sh_printf(s, "  evidence: %s\n", st->evidence);
+            sh_printf(s, "  evidence: ");
+            sh_wrap(s, st->evidence, 12);
             sh_printf(s, "  -> model %d  %s: passes %d of 5, %s/N %s, %s\n", st->chosen_id, st->spec,
                       st->passed, ic_name(o.by), sh_num(num, sizeof num, st->ic, 7),
                       st->white ? "WHITE NOISE" : "not white");

@@ -189,9 +189,7 @@ void sh_json_fit(sh_session *s, const sh_model *m)
     json_warnings(s, f);
 }
 
-/* Print TEXT from column INDENT, wrapping at the session width with the
- * same indent; ends with a newline. */
-static void wrap(sh_session *s, const char *text, int indent)
+void sh_wrap(sh_session *s, const char *text, int indent)
 {
     int width = s->width > 40 ? s->width : 80, col = indent;
     const char *p = text;
@@ -265,7 +263,7 @@ void sh_text_check(sh_session *s, const sh_model *m)
         else
             snprintf(line, sizeof line, "%s", t->detail);
         sh_printf(s, "    %-16s ", t->name);
-        wrap(s, line, 21);
+        sh_wrap(s, line, 21);
     }
 
     sh_printf(s, "\n  %-25s %22s  %9s  %s\n", "criterion", "p (Bonferroni within)", "Holm step", "decision");
@@ -301,7 +299,7 @@ void sh_text_check(sh_session *s, const sh_model *m)
         }
         if (shown) {
             sh_printf(s, "\n  Ljung-Box p-value at each m (profile; df = m - %d):\n    ", m->bopt.df_adjust);
-            wrap(s, line, 4);
+            sh_wrap(s, line, 4);
             if (first_sig)
                 sh_printf(s, "    first significant at m = %d (alpha %g, each m on its own)\n", first_sig, b->alpha);
             else
@@ -313,10 +311,10 @@ void sh_text_check(sh_session *s, const sh_model *m)
                                                : "NOT WHITE NOISE");
     if (b->summary[0]) {
         sh_printf(s, "  ");
-        wrap(s, b->summary, 2);
+        sh_wrap(s, b->summary, 2);
     }
     sh_printf(s, "  ");
-    wrap(s, b->white ? "Reading: no criterion found evidence against white noise at the family-wise level. "
+    sh_wrap(s, b->white ? "Reading: no criterion found evidence against white noise at the family-wise level. "
                        "That is absence of evidence, not proof: short series have little power, and the checks "
                        "say nothing about how well the model will forecast."
                      : "Reading: a small p-value is evidence that the residuals still hold structure of that kind; "

@@ -11,6 +11,10 @@ void sh_json_fit(sh_session *s, const sh_model *m);
 void sh_text_warnings(sh_session *s, const fit_result *f, const char *prefix);
 
 void sh_text_check(sh_session *s, const sh_model *m);
+
+/* Print TEXT, the cursor being at column INDENT, wrapping at the session
+ * width with the same indent; ends with a newline. */
+void sh_wrap(sh_session *s, const char *text, int indent);
 void sh_json_check(sh_session *s, const sh_model *m);
 
 void sh_text_models(sh_session *s);
