@@ -96,6 +96,28 @@ static void theta_to_x(const garch_ctx *c, const double *th, double *x)
         x[w->np - 1] = logit((th[w->np - 1] - 2.0) / (NU_MAX - 2.0));
 }
 
+/* The gradient of minus the log-likelihood per residual in x, GX, from the
+ * gradient G of the log-likelihood in theta at TH = theta(X), JAC as
+ * x_to_theta gives it. */
+static void grad_to_x(const garch_ctx *c, const double *x, const double *th, const double *jac,
+                      const double *g, double *gx)
+{
+    const fit_garch_work *w = &c->w;
+    const int io = w->i_omega, np = w->np;
+    const double inv = -1.0 / (double)w->N;
+    for (int i = 0; i < w->k_mean; i++)
+        gx[i] = inv * g[i];
+    if (w->spec.mean)
+        gx[0] *= c->sy;
+    gx[io] = inv * g[io] * th[io];
+    gx[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2]);
+    gx[io + 2] = inv * (g[io + 1] * jac[1] + g[io + 2] * jac[3]);
+    if (w->has_nu) {
+        double L = logistic(x[np - 1]);
+        gx[np - 1] = inv * g[np - 1] * (NU_MAX - 2.0) * L * (1.0 - L);
+    }
+}
+
 /* Optimiser objective: minus the log-likelihood per residual, in x.  The
  * gradient is always computed (it costs little beyond the value) and the last
  * point is remembered, because line searches often ask for the value and
@@ -104,7 +126,7 @@ static int obj_x(const double *x, double *f, double *grad, void *vctx)
 {
     garch_ctx *c = vctx;
     fit_garch_work *w = &c->w;
-    const int io = w->i_omega, np = w->np;
+    const int np = w->np;
     if (c->cached && memcmp(x, c->cx, (size_t)np * sizeof *x) == 0) {
         *f = c->cf;
         if (grad)
@@ -117,26 +139,13 @@ static int obj_x(const double *x, double *f, double *grad, void *vctx)
     int rc = fit_garch_loglik(w, c->theta, &ll, c->gth, NULL, NULL);
     if (rc != HN_OK)
         return rc;
-    const double inv = -1.0 / (double)w->N;
-    const double *g = c->gth;
-    double *cg = c->cg;
-    for (int i = 0; i < w->k_mean; i++)
-        cg[i] = inv * g[i];
-    if (w->spec.mean)
-        cg[0] *= c->sy;
-    cg[io] = inv * g[io] * c->theta[io];
-    cg[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2]);
-    cg[io + 2] = inv * (g[io + 1] * jac[1] + g[io + 2] * jac[3]);
-    if (w->has_nu) {
-        double L = logistic(x[np - 1]);
-        cg[np - 1] = inv * g[np - 1] * (NU_MAX - 2.0) * L * (1.0 - L);
-    }
-    c->cf = inv * ll;
+    grad_to_x(c, x, c->theta, jac, c->gth, c->cg);
+    c->cf = -ll / (double)w->N;
     memcpy(c->cx, x, (size_t)np * sizeof *x);
     c->cached = 1;
     *f = c->cf;
     if (grad)
-        memcpy(grad, cg, (size_t)np * sizeof *grad);
+        memcpy(grad, c->cg, (size_t)np * sizeof *grad);
     return HN_OK;
 }
 
@@ -241,11 +250,13 @@ static const double start_ab[][2] = {
 };
 #define N_START_AB ((int)(sizeof start_ab / sizeof start_ab[0]))
 
-/* Standard errors at the estimate: Hessian of minus the log-likelihood by
- * differences of the analytic gradient in scaled natural parameters, and the
- * sandwich H^-1 (G'G) H^-1 with G the per-observation scores; OPG holds G'G at TH
+/* Standard errors at the estimate: Hessian of minus the log-likelihood in
+ * scaled natural parameters, from HESS (the analytic Hessian in theta) or
+ * else by differences of the analytic gradient, and the sandwich
+ * H^-1 (G'G) H^-1 with G the per-observation scores; OPG holds G'G at TH
  * from the caller's pass (NULL: computed here). */
-static int standard_errors(garch_ctx *c, const double *th, fit_result *r, const double *opg)
+static int standard_errors(garch_ctx *c, const double *th, fit_result *r, const double *opg,
+                           const double *hess)
 {
     fit_garch_work *w = &c->w;
     const int np = w->np;
@@ -275,12 +286,19 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r, const 
     double *Hi = H + nn, *B = H + 2 * nn;
     for (int i = 0; i < np; i++)
         u[i] = th[i] / c->scale[i];
-    int rc = fit_hessian_fd(np, u, obj_u, c, H);
-    if (rc == HN_OK) {
-        for (size_t i = 0; i < nn; i++)
-            H[i] *= (double)N;                 /* total, not per residual */
-        rc = fit_spd_inverse(np, H, Hi);
+    int rc = HN_OK;
+    if (hess) {                                /* analytic, in theta: to u */
+        for (int i = 0; i < np; i++)
+            for (int j = 0; j < np; j++)
+                H[i * np + j] = -hess[i * np + j] * c->scale[i] * c->scale[j];
+    } else {
+        rc = fit_hessian_fd(np, u, obj_u, c, H);
+        if (rc == HN_OK)
+            for (size_t i = 0; i < nn; i++)
+                H[i] *= (double)N;             /* total, not per residual */
     }
+    if (rc == HN_OK)
+        rc = fit_spd_inverse(np, H, Hi);
     if (rc == HN_OK) {
         double ll;
         if (opg)
@@ -332,13 +350,19 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     const int io = w->i_omega, np = w->np;
     const size_t N = w->N;
     double ll;
-    /* One pass gives the log-likelihood, e_t and sigma2_t at TH and the outer
-     * product of the scores there, which the sandwich needs (the same
-     * numbers as a pass of its own after the Hessian's). */
-    double *opg = malloc((size_t)np * (size_t)np * sizeof *opg);
+    /* The log-likelihood, e_t and sigma2_t at TH and the outer product of
+     * the scores there, which the sandwich needs; for means without MA terms
+     * the analytic Hessian too (two passes in all, where differences of the
+     * gradient would take 2 np). */
+    double *opg = malloc(2 * (size_t)np * (size_t)np * sizeof *opg);
     if (!opg)
         return HN_ENOMEM;
-    int rc = fit_garch_loglik(w, th, &ll, NULL, NULL, opg);
+    double *hess = opg + (size_t)np * (size_t)np;
+    int rc = fit_garch_hessian(w, th, &ll, NULL, hess, opg);
+    if (rc != HN_OK) {
+        hess = NULL;
+        rc = fit_garch_loglik(w, th, &ll, NULL, NULL, opg);
+    }
     if (rc != HN_OK) {
         free(opg);
         opg = NULL;
@@ -369,7 +393,7 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
         r->warnings |= FIT_WARN_NU_BOUND;
     rc = fit_result_roots(r);
     if (rc == HN_OK)
-        rc = standard_errors(c, th, r, opg);
+        rc = standard_errors(c, th, r, opg, hess);
     free(opg);
     return rc;
 }

@@ -2,7 +2,9 @@
 #include "fit_garch_lik.h"
 #include "hn_status.h"
 
+#include <float.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -70,33 +72,126 @@ void fit_garch_work_free(fit_garch_work *w)
 #define UNROLL
 #endif
 
+/* Sum of log terms without a logarithm per observation: log prod_i v_i =
+ * sum_i (k_i ln 2) + log prod_i m_i with v_i = m_i 2^k_i, m_i in [1, 2), the
+ * product taken over blocks of LOG_BLOCK terms (below 2^LOG_BLOCK, so it
+ * cannot overflow) and one logarithm per block.  The rounding error of a
+ * block is that of LOG_BLOCK products, about that of as many logarithms, at a
+ * fraction of their cost.  V must be positive, normal and finite. */
+#define LOG_BLOCK 16
+
+static inline double mantissa(double v, int64_t *ex)
+{
+    uint64_t b;
+    memcpy(&b, &v, sizeof b);
+    *ex += (int64_t)(b >> 52) - 1023;
+    b = (b & 0x000FFFFFFFFFFFFFull) | 0x3FF0000000000000ull;
+    memcpy(&v, &b, sizeof v);
+    return v;
+}
+
+/* Residuals of a mean without MA terms into w->e (the operations of
+ * fit_arma_resid, so the same values), their sum of squares *SSR and, when
+ * GSUM is not NULL, sum_t e_t de_t/dtheta_mean: no recursion, so one
+ * streaming loop with block sums.  HN_OK or HN_EDOMAIN (a value not finite). */
+static inline __attribute__((always_inline)) int
+ar_resid_body(fit_garch_work *w, const double *th, double *ssr, double *gsum, const int moff,
+              const int nar)
+{
+    const double mu = moff ? th[0] : 0.0;
+    double ar[FIT_MAX_TERMS], sum_ar = 0.0;
+    ptrdiff_t lag[FIT_MAX_TERMS];
+    for (int k = 0; k < nar; k++) {
+        ar[k] = th[moff + k];
+        lag[k] = (ptrdiff_t)w->spec.ar_lag[k];
+        sum_ar += ar[k];
+    }
+    const double *y0 = w->y + w->start;
+    double *ev = w->e;
+    const size_t N = w->N;
+    ksum s_e2 = { 0.0, 0.0 }, s_e = { 0.0, 0.0 }, s_ey[FIT_MAX_TERMS];
+    for (int k = 0; k < nar; k++)
+        s_ey[k] = (ksum){ 0.0, 0.0 };
+    for (size_t i0 = 0; i0 < N; i0 += LOG_BLOCK) {
+        const size_t i1 = N - i0 > LOG_BLOCK ? i0 + LOG_BLOCK : N;
+        double be2 = 0.0, be = 0.0, bey[FIT_MAX_TERMS];
+        for (int k = 0; k < nar; k++)
+            bey[k] = 0.0;
+        for (size_t i = i0; i < i1; i++) {
+            const double *yt = y0 + i;
+            double et = yt[0] - mu;
+            for (int k = 0; k < nar; k++)
+                et -= ar[k] * (yt[-lag[k]] - mu);
+            ev[i] = et;
+            be2 += et * et;
+            if (gsum) {
+                be += et;
+                for (int k = 0; k < nar; k++)
+                    bey[k] += et * (yt[-lag[k]] - mu);
+            }
+        }
+        ksum_add(&s_e2, be2);
+        if (gsum) {
+            ksum_add(&s_e, be);
+            for (int k = 0; k < nar; k++)
+                ksum_add(&s_ey[k], bey[k]);
+        }
+    }
+    *ssr = ksum_value(&s_e2);
+    if (!isfinite(*ssr))
+        return HN_EDOMAIN;
+    if (gsum) {
+        if (moff)
+            gsum[0] = (sum_ar - 1.0) * ksum_value(&s_e);
+        for (int k = 0; k < nar; k++)
+            gsum[moff + k] = -ksum_value(&s_ey[k]);
+    }
+    return HN_OK;
+}
+
+/* ar_resid with the term counts fixed at compile time for the common models. */
+static int ar_resid(fit_garch_work *w, const double *th, double *ssr, double *gsum)
+{
+    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar;
+#define AR_CASE(M, A) \
+    if (moff == (M) && nar == (A)) \
+        return gsum ? ar_resid_body(w, th, ssr, gsum, M, A) : ar_resid_body(w, th, ssr, NULL, M, A);
+    AR_CASE(1, 0) AR_CASE(1, 1) AR_CASE(1, 2) AR_CASE(0, 1) AR_CASE(0, 2)
+#undef AR_CASE
+    return ar_resid_body(w, th, ssr, gsum, moff, nar);
+}
+
 /* The pass behind fit_garch_loglik for KM mean parameters and Student-t
  * (HAS_NU = 1) or normal innovations, AR_ONLY = 1 when the mean has no MA
- * terms; the caller has counted the pass and
- * checked TH.  Sums and derivatives live in locals (no aliasing with the
- * output arrays). */
+ * terms; the caller has counted the pass and checked TH.  Sums and
+ * derivatives live in locals (no aliasing with the output arrays).  The
+ * log-likelihood's sums are plain within a block of LOG_BLOCK terms and
+ * compensated (Neumaier) across blocks. */
 static inline __attribute__((always_inline)) int
 loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, double *scores,
-            double *opg, const int km, const int has_nu, const int ar_only)
+            double *opg, const int km, const int has_nu, const int ar_only, const int mode)
 {
     const int np = km + 3 + has_nu, io = km;
     const int kv = km + 3;                 /* parameters the variance depends on */
     const size_t N = w->N;
-    const int want_d = grad != NULL || scores != NULL || opg != NULL;
+    const int want_d = mode >= 1, want_rows = mode == 2;
+    if (!want_rows)
+        scores = opg = NULL;
     const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
     const double nu = has_nu ? th[np - 1] : 0.0;
     const double *ev = w->e, *dev = w->de;
     double *hv = w->h;
 
-    /* Pass 1 (fit_arma_resid): e_t, de_t/dtheta_mean, sum e_t^2 and
-     * sum e_t de_t.  sigma2_0 = e2_0 = s2 = mean e_t^2 at these mean parameters. */
+    /* Pass 1 (ar_resid or fit_arma_resid): e_t, de_t/dtheta_mean, sum e_t^2
+     * and sum e_t de_t.  sigma2_0 = e2_0 = s2 = mean e_t^2 at these mean parameters. */
     double dh[FIT_MAX_PARAMS];             /* d sigma2_t        (kv) */
     double de2[FIT_MAX_PARAMS];            /* d e^2_{t-1}       (km) */
     double g[FIT_MAX_PARAMS];              /* gradient          (np) */
     double rowl[FIT_MAX_PARAMS];           /* this term's scores without SCORES */
     double ssr;
-    int rc = fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d && !ar_only ? w->de : NULL, &ssr,
-                            want_d ? de2 : NULL);
+    int rc = ar_only ? ar_resid(w, th, &ssr, want_d ? de2 : NULL)
+                     : fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
+                                      want_d ? de2 : NULL);
     /* Without MA terms de_t/dtheta_mean is (sum ar - 1, -(y_{t-lag} - mu)...):
      * formed below as fit_arma_resid forms it, instead of stored and read back. */
     const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar;
@@ -117,6 +212,7 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
     const double s2 = ssr / (double)N;
     if (!(s2 > 0.0) || !isfinite(s2))
         return HN_EDOMAIN;
+    w->s2 = s2;
     if (opg)
         memset(opg, 0, (size_t)np * (size_t)np * sizeof *opg);
     if (want_d) {
@@ -138,81 +234,112 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
     } else {
         cst = -0.5 * log(2.0 * M_PI);
     }
+    const double nm2 = has_nu ? nu - 2.0 : 1.0, inm2 = 1.0 / nm2;
 
-    ksum acc = { 0.0, 0.0 };
+    /* ll = sum_t -1/2 [log h_t + e_t^2/h_t] (normal) or
+     *      sum_t -1/2 [log h_t + (nu+1) log(1 + u_t)], u_t = e_t^2/(h_t (nu-2)) (t),
+     * plus N times the constant; with t the nu-gradient is
+     * N dcst - 1/2 sum log(1 + u_t) + (nu+1)/(2 (nu-2)) sum u_t/(1 + u_t). */
+    ksum acc = { 0.0, 0.0 }, lu_acc = { 0.0, 0.0 };
+    double gnu = 0.0;
     double hprev = s2, e2prev = s2;
-    for (size_t i = 0; i < N; i++) {
-        const double e = ev[i];
-        const double h = omega + alpha * e2prev + beta * hprev;
-        if (!(h > 0.0) || !isfinite(h))
-            return HN_EDOMAIN;
-        hv[i] = h;
-        const double e2 = e * e;
-        double lt, dl_dh, dl_de, dl_dnu = 0.0;
-        if (has_nu) {
-            const double u = e2 / (h * (nu - 2.0));
-            const double lu = log1p(u);
-            lt = -0.5 * log(h) - 0.5 * (nu + 1.0) * lu;
-            dl_dh = -0.5 / h * (1.0 - (nu + 1.0) * u / (1.0 + u));
-            dl_de = -(nu + 1.0) * e / (h * (nu - 2.0) * (1.0 + u));
-            dl_dnu = dcst - 0.5 * lu + 0.5 * (nu + 1.0) * u / ((1.0 + u) * (nu - 2.0));
-        } else {
-            lt = -0.5 * (log(h) + e2 / h);
-            dl_dh = -0.5 / h * (1.0 - e2 / h);
-            dl_de = -e / h;
-        }
-        ksum_add(&acc, lt);
-
-        if (want_d) {
-            /* d sigma2_t = [mean: alpha d e2_{t-1}; omega 1; alpha e2_{t-1};
-             *               beta sigma2_{t-1}] + beta d sigma2_{t-1} */
-            UNROLL
-            for (int c = 0; c < km; c++)
-                dh[c] = alpha * de2[c] + beta * dh[c];
-            dh[km] = 1.0 + beta * dh[km];
-            dh[km + 1] = e2prev + beta * dh[km + 1];
-            dh[km + 2] = hprev + beta * dh[km + 2];
-            const double *d;
-            if (ar_only) {
-                const double *yt = y0 + i;
-                if (moff)
-                    dloc[0] = admu;
-                for (int k = 0; k < nar; k++)
-                    dloc[moff + k] = -(yt[-alag[k]] - amu);
-                d = dloc;
+    for (size_t i0 = 0; i0 < N; i0 += LOG_BLOCK) {
+        const size_t i1 = N - i0 > LOG_BLOCK ? i0 + LOG_BLOCK : N;
+        double ph = 1.0, pu = 1.0, sq = 0.0, sw = 0.0;
+        int64_t eh = 0, eu = 0;
+        for (size_t i = i0; i < i1; i++) {
+            const double e = ev[i];
+            const double h = omega + alpha * e2prev + beta * hprev;
+            if (!(h >= DBL_MIN && h <= DBL_MAX))
+                return HN_EDOMAIN;
+            hv[i] = h;
+            ph *= mantissa(h, &eh);
+            const double e2 = e * e, r = 1.0 / h;
+            double dl_dh = 0.0, dl_de = 0.0, dl_dnu = 0.0;
+            if (has_nu) {
+                const double u = e2 * r * inm2, opu = 1.0 + u;
+                if (!(opu <= DBL_MAX))
+                    return HN_EDOMAIN;
+                pu *= mantissa(opu, &eu);
+                const double iopu = 1.0 / opu, wgt = (nu + 1.0) * u * iopu;
+                sw += u * iopu;
+                if (want_d) {
+                    dl_dh = -0.5 * r * (1.0 - wgt);
+                    dl_de = -(nu + 1.0) * e * r * inm2 * iopu;
+                }
+                if (want_rows)
+                    dl_dnu = dcst - 0.5 * log1p(u) + 0.5 * wgt * inm2;
             } else {
-                d = dev + i * (size_t)km;
+                const double e2r = e2 * r;
+                sq += e2r;
+                if (want_d) {
+                    dl_dh = -0.5 * r * (1.0 - e2r);
+                    dl_de = -e * r;
+                }
             }
-            double *row = scores ? scores + i * (size_t)np : rowl;
-            UNROLL
-            for (int c = 0; c < km; c++)
-                row[c] = dl_dh * dh[c] + dl_de * d[c];
-            UNROLL
-            for (int c = km; c < kv; c++)
-                row[c] = dl_dh * dh[c];
-            if (has_nu)
-                row[np - 1] = dl_dnu;
-            UNROLL
-            for (int c = 0; c < np; c++)
-                g[c] += row[c];
-            if (opg)
+
+            if (want_d) {
+                /* d sigma2_t = [mean: alpha d e2_{t-1}; omega 1; alpha e2_{t-1};
+                 *               beta sigma2_{t-1}] + beta d sigma2_{t-1} */
                 UNROLL
-                for (int a = 0; a < np; a++)
+                for (int c = 0; c < km; c++)
+                    dh[c] = alpha * de2[c] + beta * dh[c];
+                dh[km] = 1.0 + beta * dh[km];
+                dh[km + 1] = e2prev + beta * dh[km + 1];
+                dh[km + 2] = hprev + beta * dh[km + 2];
+                const double *d;
+                if (ar_only) {
+                    const double *yt = y0 + i;
+                    if (moff)
+                        dloc[0] = admu;
+                    for (int k = 0; k < nar; k++)
+                        dloc[moff + k] = -(yt[-alag[k]] - amu);
+                    d = dloc;
+                } else {
+                    d = dev + i * (size_t)km;
+                }
+                double *row = scores ? scores + i * (size_t)np : rowl;
+                UNROLL
+                for (int c = 0; c < km; c++)
+                    row[c] = dl_dh * dh[c] + dl_de * d[c];
+                UNROLL
+                for (int c = km; c < kv; c++)
+                    row[c] = dl_dh * dh[c];
+                UNROLL
+                for (int c = 0; c < kv; c++)
+                    g[c] += row[c];
+                if (has_nu)
+                    row[np - 1] = dl_dnu;
+                if (opg)
                     UNROLL
-                    for (int b = 0; b <= a; b++)
-                        opg[a * np + b] += row[a] * row[b];
-            UNROLL
-            for (int c = 0; c < km; c++)
-                de2[c] = 2.0 * e * d[c];
+                    for (int a = 0; a < np; a++)
+                        UNROLL
+                        for (int b = 0; b <= a; b++)
+                            opg[a * np + b] += row[a] * row[b];
+                UNROLL
+                for (int c = 0; c < km; c++)
+                    de2[c] = 2.0 * e * d[c];
+            }
+            hprev = h;
+            e2prev = e2;
         }
-        hprev = h;
-        e2prev = e2;
+        const double lh = log(ph) + (double)eh * M_LN2;
+        if (has_nu) {
+            const double lu = log(pu) + (double)eu * M_LN2;
+            ksum_add(&acc, -0.5 * (lh + (nu + 1.0) * lu));
+            ksum_add(&lu_acc, lu);
+            gnu += sw;
+        } else {
+            ksum_add(&acc, -0.5 * (lh + sq));
+        }
     }
 
     double total = ksum_value(&acc) + (double)N * cst;
     if (!isfinite(total))
         return HN_EDOMAIN;
     *ll = total;
+    if (has_nu && want_d)
+        g[np - 1] = (double)N * dcst - 0.5 * ksum_value(&lu_acc) + 0.5 * (nu + 1.0) * inm2 * gnu;
     if (grad)
         memcpy(grad, g, (size_t)np * sizeof *grad);
     if (opg)
@@ -232,19 +359,28 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
             return HN_EDOMAIN;
     if (w->has_nu && !(th[np - 1] > 2.0))
         return HN_EDOMAIN;
-    /* copies with the parameter counts fixed at compile time for the
-     * common mean models: the same operations in the same order */
-    const int ar = w->spec.n_ma == 0;
-#define LOGLIK_CASE(K) \
-    if (km == (K)) { \
-        if (ar) \
-            return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, K, 1, 1) \
-                             : loglik_body(w, th, ll, grad, scores, opg, K, 0, 1); \
-        return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, K, 1, 0) \
-                         : loglik_body(w, th, ll, grad, scores, opg, K, 0, 0); \
+    /* Copies with the work fixed at compile time, so that the loop holds
+     * only what it needs: the log-likelihood alone, or with its gradient
+     * for the common mean models (parameter counts fixed too), or with
+     * per-observation scores; each does the same operations in the same
+     * order as the general one. */
+    const int ar = w->spec.n_ma == 0, nu = w->has_nu;
+#define BODY(K, NU, AR, MODE) loglik_body(w, th, ll, grad, scores, opg, K, NU, AR, MODE)
+#define BY_NU_AR(K, MODE) \
+    (nu ? (ar ? BODY(K, 1, 1, MODE) : BODY(K, 1, 0, MODE)) \
+        : (ar ? BODY(K, 0, 1, MODE) : BODY(K, 0, 0, MODE)))
+    if (scores || opg)
+        return BY_NU_AR(km, 2);
+    if (!grad)
+        return BY_NU_AR(km, 0);
+    switch (km) {
+    case 0: return BY_NU_AR(0, 1);
+    case 1: return BY_NU_AR(1, 1);
+    case 2: return BY_NU_AR(2, 1);
+    case 3: return BY_NU_AR(3, 1);
+    case 4: return BY_NU_AR(4, 1);
+    default: return BY_NU_AR(km, 1);
     }
-    LOGLIK_CASE(0) LOGLIK_CASE(1) LOGLIK_CASE(2) LOGLIK_CASE(3) LOGLIK_CASE(4)
-#undef LOGLIK_CASE
-    return w->has_nu ? loglik_body(w, th, ll, grad, scores, opg, km, 1, ar)
-                     : loglik_body(w, th, ll, grad, scores, opg, km, 0, ar);
+#undef BY_NU_AR
+#undef BODY
 }

@@ -22,6 +22,7 @@ typedef struct {
     double *e;           /* N residuals at the last evaluation */
     double *de;          /* N x k_mean derivatives of e_t (row-major) */
     double *h;           /* N conditional variances at the last evaluation */
+    double s2;           /* sigma2_0 = e2_0 (mean e_t^2) at the last evaluation */
     fit_arma_ws *aw;     /* residual recursion workspace */
     long passes;         /* likelihood passes made so far (work counter) */
 } fit_garch_work;
@@ -46,5 +47,19 @@ void fit_garch_work_free(fit_garch_work *w);
  * finite.  The log-likelihood is summed with Neumaier's compensation. */
 int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
                      double *grad, double *scores, double *opg);
+
+/* Most mean parameters fit_garch_hessian takes, and the parameter count
+ * that allows. */
+#define FIT_GARCH_HESS_KM 4
+#define FIT_GARCH_HESS_MAX (FIT_GARCH_HESS_KM + 4)
+
+/* As fit_garch_loglik with GRAD (may be NULL), plus HESS: the analytic Hessian of
+ * the log-likelihood (np x np, row-major, the sum over all N terms) and, when
+ * OPG is not NULL, the score outer product.  Means without MA terms and
+ * with at most FIT_GARCH_HESS_KM parameters only (HN_EINVAL otherwise);
+ * counts one pass (the ordinary one inside) and leaves w->e and w->h at
+ * THETA.  HN_OK, HN_EDOMAIN as fit_garch_loglik, or HN_ENUMERIC. */
+int fit_garch_hessian(fit_garch_work *w, const double *theta, double *ll, double *grad,
+                      double *hess, double *opg);
 
 #endif
