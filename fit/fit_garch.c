@@ -192,8 +192,70 @@ static double vnorm(const double *g, int np)
     return sqrt(s);
 }
 
-/* Newton steps on the objective in x with the Hessian from differences of
- * the analytic gradient, after BFGS2: near the optimum the objective changes
+/* The Hessian of the optimiser's objective (minus the log-likelihood per
+ * residual) in x at X, into H (np x np): from the analytic Hessian in theta
+ * by the chain rule, H_x = -(J' H_theta J + sum_k g_k d2theta_k/dx dx') / N,
+ * with J = dtheta/dx and g the log-likelihood's gradient.  HN_EINVAL where
+ * the analytic Hessian does not apply (MA terms), else as fit_garch_hessian. */
+static int hessian_x(garch_ctx *c, const double *x, double *H)
+{
+    fit_garch_work *w = &c->w;
+    const int np = w->np, io = w->i_omega;
+    if (np > FIT_GARCH_HESS_MAX)
+        return HN_EINVAL;
+    double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], jac[4], ll;
+    double Ht[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX], J[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX];
+    x_to_theta(c, x, th, jac);
+    c->cached = 0;
+    int rc = fit_garch_hessian(w, th, &ll, g, Ht, NULL);
+    if (rc != HN_OK)
+        return rc;
+    memset(J, 0, (size_t)np * (size_t)np * sizeof *J);    /* J[k][i] = dtheta_k/dx_i */
+    for (int i = 0; i < w->k_mean; i++)
+        J[i * np + i] = 1.0;
+    if (w->spec.mean)
+        J[0] = c->sy;
+    J[io * np + io] = th[io];
+    J[(io + 1) * np + io + 1] = jac[0];
+    J[(io + 1) * np + io + 2] = jac[1];
+    J[(io + 2) * np + io + 1] = jac[2];
+    J[(io + 2) * np + io + 2] = jac[3];
+    double Lnu = 0.0;
+    if (w->has_nu) {
+        Lnu = logistic(x[np - 1]);
+        J[(np - 1) * np + np - 1] = (NU_MAX - 2.0) * Lnu * (1.0 - Lnu);
+    }
+    for (int i = 0; i < np; i++)
+        for (int j = 0; j < np; j++) {
+            double v = 0.0;
+            for (int a = 0; a < np; a++)
+                for (int b = 0; b < np; b++)
+                    v += J[a * np + i] * Ht[a * np + b] * J[b * np + j];
+            H[i * np + j] = v;
+        }
+    /* second derivatives of the transforms: omega = vy e^x; alpha = P q,
+     * beta = P (1 - q) with P, q logistic; nu = 2 + (NU_MAX - 2) L */
+    const double P = logistic(x[io + 1]), q = logistic(x[io + 2]);
+    const double P1 = P * (1.0 - P), P2 = P1 * (1.0 - 2.0 * P);
+    const double q1 = q * (1.0 - q), q2 = q1 * (1.0 - 2.0 * q);
+    const int ip = io + 1, iq = io + 2;
+    H[io * np + io] += g[io] * th[io];
+    H[ip * np + ip] += g[ip] * P2 * q + g[iq] * P2 * (1.0 - q);
+    H[ip * np + iq] += g[ip] * P1 * q1 - g[iq] * P1 * q1;
+    H[iq * np + ip] += g[ip] * P1 * q1 - g[iq] * P1 * q1;
+    H[iq * np + iq] += g[ip] * P * q2 - g[iq] * P * q2;
+    if (w->has_nu)
+        H[(np - 1) * np + np - 1] +=
+            g[np - 1] * (NU_MAX - 2.0) * Lnu * (1.0 - Lnu) * (1.0 - 2.0 * Lnu);
+    const double inv = -1.0 / (double)w->N;
+    for (int i = 0; i < np * np; i++)
+        H[i] *= inv;
+    return HN_OK;
+}
+
+/* Newton steps on the objective in x with the Hessian (analytic where
+ * hessian_x applies, else from differences of the analytic gradient), after
+ * BFGS2: near the optimum the objective changes
  * by less than its rounding error, so line searches on it stall, while the
  * gradient still carries information.  Steps aim at 1e-4 TOL; one is kept
  * when it lowers the gradient norm without raising the objective beyond
@@ -216,7 +278,7 @@ static int newton_polish(garch_ctx *c, double *x, double tol, double *gn)
     /* Aim well below the tolerance: the extra digits cost a few passes. */
     const double target = 1e-4 * tol;
     for (int it = 0; it < 6 && *gn >= target; it++) {
-        if (fit_hessian_fd(np, x, obj_x, c, H) != HN_OK)
+        if (hessian_x(c, x, H) != HN_OK && fit_hessian_fd(np, x, obj_x, c, H) != HN_OK)
             break;
         memcpy(d, g, (size_t)np * sizeof *d);
         if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', np, 1, H, np, d, 1) != 0)
