@@ -69,10 +69,26 @@ int sh_scan_run(const double *y, size_t n, const sh_scan_options *o, sh_scan_res
             s->garch = o->garch;
             s->dist = o->dist;
         }
+    /* The largest models first: they take longest, and started last they
+     * would leave the other threads idle at the end.  Each result stays in
+     * its own cell, so the order does not change what is reported. */
+    int *order = malloc((size_t)nc * sizeof *order);
+    if (!order) {
+        free(r->cell);
+        r->cell = NULL;
+        r->ncells = 0;
+        return HN_ENOMEM;
+    }
+    int k = 0;
+    for (int size = o->p_max + o->q_max; size >= o->p_min + o->q_min; size--)
+        for (int i = 0; i < nc; i++)
+            if (r->cell[i].spec.n_ar + r->cell[i].spec.n_ma == size)
+                order[k++] = i;
     int done = 0;
     int threads = o->threads > 0 ? o->threads : omp_get_max_threads();
 #pragma omp parallel for schedule(dynamic, 1) num_threads(threads)
-    for (int i = 0; i < nc; i++) {
+    for (int j = 0; j < nc; j++) {
+        const int i = order[j];
         run_cell(y, n, o, &r->cell[i]);
         if (o->progress) {
 #pragma omp critical(sh_scan_progress)
@@ -83,6 +99,7 @@ int sh_scan_run(const double *y, size_t n, const sh_scan_options *o, sh_scan_res
             }
         }
     }
+    free(order);
     if (o->progress)
         fprintf(stderr, "\r%40s\r", "");
     /* the best: smallest criterion per residual among the models that pass,
