@@ -196,7 +196,7 @@ static double vnorm(const double *g, int np)
  * residual) in x at X, into H (np x np): from the analytic Hessian in theta
  * by the chain rule, H_x = -(J' H_theta J + sum_k g_k d2theta_k/dx dx') / N,
  * with J = dtheta/dx and g the log-likelihood's gradient.  HN_EINVAL where
- * the analytic Hessian does not apply (MA terms), else as fit_garch_hessian. */
+ * the analytic Hessian does not apply (a long mean), else as fit_garch_hessian. */
 static int hessian_x(garch_ctx *c, const double *x, double *H)
 {
     fit_garch_work *w = &c->w;
@@ -413,9 +413,9 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     const size_t N = w->N;
     double ll;
     /* The log-likelihood, e_t and sigma2_t at TH and the outer product of
-     * the scores there, which the sandwich needs; for means without MA terms
-     * the analytic Hessian too (two passes in all, where differences of the
-     * gradient would take 2 np). */
+     * the scores there, which the sandwich needs; for means of up to
+     * FIT_GARCH_HESS_KM terms the analytic Hessian too (two passes in all,
+     * where differences of the gradient would take 2 np). */
     double *opg = malloc(2 * (size_t)np * (size_t)np * sizeof *opg);
     if (!opg)
         return HN_ENOMEM;

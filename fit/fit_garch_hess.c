@@ -17,9 +17,10 @@
  *                 + beta dh_{t-1}/da
  *   d2h_t/dadb  = beta d2h_{t-1}/dadb + alpha d2E_{t-1}/dadb + [a=alpha] dE_{t-1}/db
  *                 + [b=alpha] dE_{t-1}/da + [a=beta] dh_{t-1}/db + [b=beta] dh_{t-1}/da
- * with dE/dm_c = 2 e de_c, d2E/dm_c dm_d = 2 (de_c de_d + e d2e_cd), and without MA
+ * with dE/dm_c = 2 e de_c, d2E/dm_c dm_d = 2 (de_c de_d + e d2e_cd).  Without MA
  * terms e_t = (y_t - mu) - sum_k ar_k (y_{t-k} - mu) is linear in each parameter,
- * d2e/dmu dar_k = 1 the only second derivative.  Each term l_t(h_t, e_t, nu) adds
+ * d2e/dmu dar_k = 1 the only second derivative; MA terms add the recursion
+ * of ma_second.  Each term l_t(h_t, e_t, nu) adds
  *   l_h d2h_ab + l_hh dh_a dh_b + l_he (dh_a de_b + de_a dh_b) + l_ee de_a de_b + l_e d2e_ab
  * to the (a, b) entry, and l_hnu dh_a + l_enu de_a, l_nunu to the nu row.
  * Normal:    l = -1/2 (log 2 pi + log h + e^2/h).
@@ -37,15 +38,45 @@
 #define UNROLL
 #endif
 
+/* d2e_t for residual I of a mean with NMA MA terms (mean parameters from
+ * index M0 on), from DE (N x KM first derivatives) and RING (the last R
+ * values of d2e, TRI-packed), into OUT, which is also stored in RING.
+ * Returns OUT. */
+static inline double *ma_second(const double *de, double *ring, size_t i, const double *d2c,
+                                double *out, const double *ma, const size_t *mlag, size_t R,
+                                const int km, const int m0, const int nma)
+{
+    const int T = km * (km + 1) / 2;
+    memcpy(out, d2c, (size_t)T * sizeof *out);
+    for (int j = 0; j < nma; j++) {
+        if (i < mlag[j])
+            continue;                       /* pre-sample: zero */
+        const size_t s = i - mlag[j];
+        const double *past = ring + (s % R) * (size_t)T, *dp = de + s * (size_t)km;
+        for (int t = 0; t < T; t++)
+            out[t] -= ma[j] * past[t];
+        const int c = m0 + j;               /* the row and column of ma_j */
+        for (int b = 0; b < km; b++) {
+            const int hi = c > b ? c : b, lo = c > b ? b : c;
+            out[TRI(hi, lo)] -= dp[b] * (b == c ? 2.0 : 1.0);
+        }
+    }
+    memcpy(ring + (i % R) * (size_t)T, out, (size_t)T * sizeof *out);
+    return out;
+}
+
 /* The pass behind fit_garch_hessian with the counts fixed at compile time
  * in the common models (KM mean parameters of which MOFF = 1 is mu, HAS_NU,
  * WANT_OPG), so that the loops over parameter pairs unroll and their tests
  * fold away.  The caller has made the ordinary pass at TH. */
 static inline __attribute__((always_inline)) int
-hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const int km,
-          const int moff, const int has_nu, const int want_opg)
+hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, double *ring,
+          const int km, const int moff, const int nma, const int has_nu, const int want_opg)
 {
-    const int np = km + 3 + has_nu, io = km, kv = km + 3, nar = km - moff;
+    if (km > FIT_GARCH_HESS_KM || nma > km)
+        __builtin_unreachable();            /* the caller's checks, for the compiler */
+    const int np = km + 3 + has_nu, io = km, kv = km + 3, nar = km - moff - nma;
+    const int T = km * (km + 1) / 2;
     const size_t N = w->N;
     const double alpha = th[io + 1], beta = th[io + 2];
     const double nu = has_nu ? th[np - 1] : 0.0;
@@ -59,28 +90,52 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const 
     }
     const double admu = sum_ar - 1.0;
     const double *y0 = w->y + w->start, *ev = w->e, *hv = w->h;
+    double ma[FIT_MAX_TERMS];
+    size_t mlag[FIT_MAX_TERMS], R = 1;
+    for (int j = 0; j < nma; j++) {
+        ma[j] = th[moff + nar + j];
+        mlag[j] = (size_t)w->spec.ma_lag[j];
+        if (mlag[j] + 1 > R)
+            R = mlag[j] + 1;
+    }
 
     /* d s2 and d2 s2 over the mean parameters. */
-    double d[FIT_GARCH_HESS_MAX], d2e[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX];
-    memset(d2e, 0, sizeof d2e);
+    /* d2c: the second derivatives of e_t without MA terms (1 for each
+     * (mu, ar_k)); with MA terms d2e_t follows the recursion
+     * d2e_t = d2c - sum_j ma_j d2e_{t-m_j} - [c = ma_j] de_{t-m_j,d} - [d = ma_j] de_{t-m_j,c},
+     * kept for the last R residuals in RING (pre-sample values 0). */
+    double dloc[FIT_GARCH_HESS_MAX], d2c[FIT_GARCH_HESS_MAX * (FIT_GARCH_HESS_MAX + 1) / 2];
+    double d2l[FIT_GARCH_HESS_MAX * (FIT_GARCH_HESS_MAX + 1) / 2];
+    const double *d = dloc, *d2e = d2c;
+    memset(d2c, 0, sizeof d2c);
     if (moff)
         for (int k = 0; k < nar; k++)
-            d2e[(1 + k) * km + 0] = d2e[0 * km + 1 + k] = 1.0;
+            d2c[TRI(1 + k, 0)] = 1.0;
     double ds2[FIT_GARCH_HESS_MAX], d2s2[FIT_GARCH_HESS_MAX * (FIT_GARCH_HESS_MAX + 1) / 2];
     memset(ds2, 0, sizeof ds2);
     memset(d2s2, 0, sizeof d2s2);
+    if (nma)
+        memset(ring, 0, R * (size_t)T * sizeof *ring);
     for (size_t i = 0; i < N; i++) {
-        const double *yt = y0 + i, e = ev[i];
-        if (moff)
-            d[0] = admu;
-        for (int k = 0; k < nar; k++)
-            d[moff + k] = -(yt[-lag[k]] - mu);
+        const double e = ev[i];
+        if (nma) {
+            d = w->de + i * (size_t)km;
+            d2e = ma_second(w->de, ring, i, d2c, d2l, ma, mlag, R, km, moff + nar, nma);
+        } else {
+            const double *yt = y0 + i;
+            if (moff)
+                dloc[0] = admu;
+            for (int k = 0; k < nar; k++)
+                dloc[moff + k] = -(yt[-lag[k]] - mu);
+        }
         for (int a = 0; a < km; a++) {
             ds2[a] += e * d[a];
             for (int b = 0; b <= a; b++)
-                d2s2[TRI(a, b)] += d[a] * d[b] + e * d2e[a * km + b];
+                d2s2[TRI(a, b)] += d[a] * d[b] + e * d2e[TRI(a, b)];
         }
     }
+    if (nma)
+        memset(ring, 0, R * (size_t)T * sizeof *ring);
     const double iN2 = 2.0 / (double)N;
     for (int a = 0; a < km; a++)
         ds2[a] *= iN2;
@@ -93,7 +148,7 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const 
     double d2E[FIT_GARCH_HESS_MAX * (FIT_GARCH_HESS_MAX + 1) / 2];  /* d2E over km */
     double acc[FIT_GARCH_HESS_MAX * (FIT_GARCH_HESS_MAX + 1) / 2];  /* over np */
     double nacc[FIT_GARCH_HESS_MAX];                                /* nu row, a < kv */
-    double row[FIT_GARCH_HESS_MAX];
+    double row[FIT_GARCH_HESS_MAX] = { 0.0 };
     memset(dh, 0, sizeof dh);
     memset(dE, 0, sizeof dE);
     memset(H2, 0, sizeof H2);
@@ -141,12 +196,17 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const 
         dh[ib] = hprev + beta * dh[ib];
 
         const double e = ev[i], h = hv[i], e2 = e * e, r = 1.0 / h;
-        const double *yt = y0 + i;
-        if (moff)
-            d[0] = admu;
-        UNROLL
-        for (int k = 0; k < nar; k++)
-            d[moff + k] = -(yt[-lag[k]] - mu);
+        if (nma) {
+            d = w->de + i * (size_t)km;
+            d2e = ma_second(w->de, ring, i, d2c, d2l, ma, mlag, R, km, moff + nar, nma);
+        } else {
+            const double *yt = y0 + i;
+            if (moff)
+                dloc[0] = admu;
+            UNROLL
+            for (int k = 0; k < nar; k++)
+                dloc[moff + k] = -(yt[-lag[k]] - mu);
+        }
         double l_h, l_e, l_hh, l_he, l_ee, l_hn = 0.0, l_en = 0.0, l_nn = 0.0, l_n = 0.0;
         if (has_nu) {
             const double q = h * nm2 + e2, iq = 1.0 / q;
@@ -179,7 +239,7 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const 
                 double v = l_h * H2[TRI(a, b)] + l_hh * dh[a] * dh[b] +
                            l_he * (dh[a] * deb + dea * dh[b]) + l_ee * dea * deb;
                 if (a < km)
-                    v += l_e * d2e[a * km + b];
+                    v += l_e * d2e[TRI(a, b)];
                 acc[TRI(a, b)] += v;
             }
             if (has_nu)
@@ -204,7 +264,7 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const 
             dE[a] = 2.0 * e * d[a];
             UNROLL
             for (int b = 0; b <= a; b++)
-                d2E[TRI(a, b)] = 2.0 * (d[a] * d[b] + e * d2e[a * km + b]);
+                d2E[TRI(a, b)] = 2.0 * (d[a] * d[b] + e * d2e[TRI(a, b)]);
         }
         Eprev = e2;
         hprev = h;
@@ -233,19 +293,38 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, const 
 int fit_garch_hessian(fit_garch_work *w, const double *th, double *ll, double *grad,
                       double *hess, double *opg)
 {
-    const int km = w->k_mean, np = w->np, nu = w->has_nu, moff = w->spec.mean ? 1 : 0;
-    if (w->spec.n_ma != 0 || km > FIT_GARCH_HESS_KM)
+    const int km = w->k_mean, nu = w->has_nu, moff = w->spec.mean ? 1 : 0, nma = w->spec.n_ma;
+    if (km > FIT_GARCH_HESS_KM)
         return HN_EINVAL;
-    (void)np;
-    /* The log-likelihood, gradient and e_t, h_t come from the ordinary pass,
-     * so they are the same numbers as everywhere else; this pass adds the
-     * second derivatives (and the score outer product when asked). */
-    int rc = fit_garch_loglik(w, th, ll, grad, NULL, NULL);
+    /* The log-likelihood, gradient, e_t, h_t (and with MA terms de_t) come
+     * from the ordinary pass, so they are the same numbers as everywhere
+     * else; this pass adds the second derivatives (and the score outer
+     * product when asked). */
+    double gbuf[FIT_MAX_PARAMS];
+    int rc = fit_garch_loglik(w, th, ll, grad ? grad : nma ? gbuf : NULL, NULL, NULL);
     if (rc != HN_OK)
         return rc;
+    if (nma) {
+        /* general counts; the ring of past second derivatives */
+        size_t R = 1;
+        for (int j = 0; j < nma; j++)
+            if ((size_t)w->spec.ma_lag[j] + 1 > R)
+                R = (size_t)w->spec.ma_lag[j] + 1;
+        double *ring = malloc(R * (size_t)(km * (km + 1) / 2) * sizeof *ring);
+        if (!ring)
+            return HN_ENOMEM;
+        rc = nu ? (opg ? hess_body(w, th, hess, opg, ring, km, moff, nma, 1, 1)
+                       : hess_body(w, th, hess, NULL, ring, km, moff, nma, 1, 0))
+                : (opg ? hess_body(w, th, hess, opg, ring, km, moff, nma, 0, 1)
+                       : hess_body(w, th, hess, NULL, ring, km, moff, nma, 0, 0));
+        free(ring);
+        return rc;
+    }
 #define HB(K, M) \
-    (nu ? (opg ? hess_body(w, th, hess, opg, K, M, 1, 1) : hess_body(w, th, hess, NULL, K, M, 1, 0)) \
-        : (opg ? hess_body(w, th, hess, opg, K, M, 0, 1) : hess_body(w, th, hess, NULL, K, M, 0, 0)))
+    (nu ? (opg ? hess_body(w, th, hess, opg, NULL, K, M, 0, 1, 1) \
+               : hess_body(w, th, hess, NULL, NULL, K, M, 0, 1, 0)) \
+        : (opg ? hess_body(w, th, hess, opg, NULL, K, M, 0, 0, 1) \
+               : hess_body(w, th, hess, NULL, NULL, K, M, 0, 0, 0)))
     if (km == 0)
         return HB(0, 0);
     if (km == 1)
@@ -254,8 +333,6 @@ int fit_garch_hessian(fit_garch_work *w, const double *th, double *ll, double *g
         return moff ? HB(2, 1) : HB(2, 0);
     if (km == 3)
         return moff ? HB(3, 1) : HB(3, 0);
-    if (km == 4)
-        return moff ? HB(4, 1) : HB(4, 0);
-    return HN_EINVAL;
+    return moff ? HB(4, 1) : HB(4, 0);
 #undef HB
 }

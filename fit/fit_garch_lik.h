@@ -55,8 +55,8 @@ int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
 
 /* As fit_garch_loglik with GRAD (may be NULL), plus HESS: the analytic Hessian of
  * the log-likelihood (np x np, row-major, the sum over all N terms) and, when
- * OPG is not NULL, the score outer product.  Means without MA terms and
- * with at most FIT_GARCH_HESS_KM parameters only (HN_EINVAL otherwise);
+ * OPG is not NULL, the score outer product.  Means with at most
+ * FIT_GARCH_HESS_KM parameters only (HN_EINVAL otherwise; HN_ENOMEM);
  * counts one pass (the ordinary one inside) and leaves w->e and w->h at
  * THETA.  HN_OK, HN_EDOMAIN as fit_garch_loglik, or HN_ENUMERIC. */
 int fit_garch_hessian(fit_garch_work *w, const double *theta, double *ll, double *grad,

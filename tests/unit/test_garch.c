@@ -196,7 +196,7 @@ static void check_gradient(const char *text, const double *truth, const double *
 
 /* The Hessian of fit_garch_hessian against central differences of the
  * analytic gradient (itself checked above), and its score outer product
- * against fit_garch_loglik's; an MA mean is refused. */
+ * against fit_garch_loglik's; a mean with too many terms is refused. */
 static void check_hessian(const char *text, const double *truth, const double *at)
 {
     fit_spec s = spec_of(text);
@@ -254,11 +254,16 @@ static void test_hessian(void **state)
     const double t5[8] = { 1.0, 0.4, 0.2, -0.1, 0.05, 0.1, 0.85, 8.0 };
     const double a5[8] = { 0.9, 0.35, 0.25, -0.05, 0.06, 0.12, 0.8, 6.0 };
     check_hessian("ar(3)+garch(1,1) t", t5, a5);
-    /* MA terms: refused, the caller takes differences instead */
-    fit_spec s = spec_of("arma(1,1)+garch(1,1)");
-    double y[300], th[6] = { 0.0, 0.3, 0.2, 0.05, 0.1, 0.85 }, g[6], H[36], ll;
-    const double tr[6] = { 0.0, 0.3, 0.2, 0.05, 0.1, 0.85 };
-    assert_int_equal(fit_simulate(&s, tr, 300, 100, 7UL, y), HN_OK);
+    const double t6[6] = { 0.2, 0.5, 0.3, 0.05, 0.1, 0.85 }, a6[6] = { 0.15, 0.45, 0.25, 0.06, 0.12, 0.8 };
+    check_hessian("arma(1,1)+garch(1,1)", t6, a6);
+    const double t7[6] = { 0.3, -0.2, 0.05, 0.1, 0.85, 6.0 };
+    const double a7[6] = { 0.25, -0.15, 0.06, 0.12, 0.8, 8.0 };
+    check_hessian("ma[1,3]+garch(1,1) t nomean", t7, a7);
+    /* more than FIT_GARCH_HESS_KM mean parameters: refused, the caller takes
+     * differences instead */
+    fit_spec s = spec_of("arma(2,2)+garch(1,1)");
+    double y[300], th[8] = { 0.0, 0.3, 0.1, 0.2, 0.1, 0.05, 0.1, 0.85 }, g[8], H[64], ll;
+    assert_int_equal(fit_simulate(&s, th, 300, 100, 7UL, y), HN_OK);
     fit_garch_work w;
     assert_int_equal(fit_garch_work_init(&w, y, 300, &s), HN_OK);
     assert_int_equal(fit_garch_hessian(&w, th, &ll, g, H, NULL), HN_EINVAL);
