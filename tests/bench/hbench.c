@@ -2,6 +2,8 @@
 #include "fit.h"
 #include "fit_spec.h"
 #include "diag_battery.h"
+#include "diag_checks.h"
+#include "diag_stats.h"
 #include "hn_status.h"
 #include "sh_csv.h"
 
@@ -17,6 +19,9 @@
  *   hbench fit SPEC FILE REPS          fit_model REPS times
  *   hbench battery FILE REPS [SPEC]    diag_battery_run (m = 20, ARCH-LM 5 lags)
  *                                      on FILE, or on the residuals of SPEC
+ *   hbench checks FILE REPS [SPEC]     the baseline's four checks alone: the ACF to lag 20
+ *                                      with Ljung-Box, McLeod-Li (m = 20), ARCH-LM (5
+ *                                      lags) and Jarque-Bera, on FILE or SPEC's residuals
  *   hbench csv FILE REPS               sh_csv_load of the first value column
  * Times are wall-clock seconds (CLOCK_MONOTONIC) of the computation only;
  * peak memory is getrusage's ru_maxrss in KiB, read before and after. */
@@ -179,6 +184,70 @@ static int bench_battery(const char *path, int reps, const char *spec_text, doub
     return 0;
 }
 
+/* The checks a scripted baseline runs, one call each, as a user of the
+ * library would call them. */
+static int four_checks(const double *x, size_t n, int df_adjust, diag_test *t)
+{
+    double acf[20], skew, kurt;
+    int rc = diag_acf(x, n, 20, acf);
+    if (rc == HN_OK)
+        rc = diag_ljung_box_acf(acf, 20, n, 20, df_adjust, 0.05, &t[0]);
+    if (rc == HN_OK)
+        rc = diag_mcleod_li(x, n, 20, 0.05, &t[1]);
+    if (rc == HN_OK)
+        rc = diag_arch_lm(x, n, 5, 0.05, &t[2]);
+    if (rc == HN_OK)
+        rc = diag_jarque_bera(x, n, 0.05, &t[3], &skew, &kurt);
+    return rc;
+}
+
+static int bench_checks(const char *path, int reps, const char *spec_text, double *t)
+{
+    sh_data d;
+    fit_spec spec;
+    fit_result r;
+    memset(&r, 0, sizeof r);
+    if ((spec_text && parse_spec(spec_text, &spec)) || load(path, &d) != HN_OK)
+        return 1;
+    const double *x = d.y;
+    size_t n = d.n;
+    int df_adjust = 0;
+    if (spec_text) {
+        int rc = fit_model(d.y, d.n, &spec, NULL, &r);
+        if (rc != HN_OK) {
+            fprintf(stderr, "hbench: fit failed: %s\n", hn_strerror(rc));
+            sh_data_free(&d);
+            return 1;
+        }
+        x = r.resid;
+        n = r.n_eff;
+        df_adjust = fit_spec_arma_terms(&spec);
+    }
+    diag_test tests[4];
+    int rc = HN_OK;
+    for (int i = 0; i < reps && rc == HN_OK; i++) {
+        double t0 = now(), c0 = cpu_now();
+        rc = four_checks(x, n, df_adjust, tests);
+        t[i] = now() - t0;
+        cpu_t[i] = cpu_now() - c0;
+    }
+    if (rc != HN_OK) {
+        fprintf(stderr, "hbench: checks failed: %s\n", hn_strerror(rc));
+        fit_result_free(&r);
+        sh_data_free(&d);
+        return 1;
+    }
+    printf("{\"what\":\"checks\",\"n\":%zu,", n);
+    print_times(t, reps);
+    printf(",\"checks\":4,\"p\":{");
+    for (int k = 0; k < 4; k++)
+        printf("%s\"%s\":%.10g", k ? "," : "", tests[k].name, tests[k].p);
+    printf("}}\n");
+    fit_result_free(&r);
+    sh_data_free(&d);
+    return 0;
+}
+
 static int bench_csv(const char *path, int reps, double *t)
 {
     struct stat st;
@@ -209,7 +278,7 @@ int main(int argc, char **argv)
 {
     gsl_set_error_handler_off();
     if (argc < 4) {
-        fprintf(stderr, "usage: hbench fit SPEC FILE REPS | battery FILE REPS [SPEC] | csv FILE REPS\n");
+        fprintf(stderr, "usage: hbench fit SPEC FILE REPS | battery|checks FILE REPS [SPEC] | csv FILE REPS\n");
         return 2;
     }
     int fit = !strcmp(argv[1], "fit");
@@ -226,6 +295,8 @@ int main(int argc, char **argv)
         rc = bench_fit(argv[2], argv[3], reps, t);
     else if (!strcmp(argv[1], "battery"))
         rc = bench_battery(argv[2], reps, argc > 4 ? argv[4] : NULL, t);
+    else if (!strcmp(argv[1], "checks"))
+        rc = bench_checks(argv[2], reps, argc > 4 ? argv[4] : NULL, t);
     else if (!strcmp(argv[1], "csv"))
         rc = bench_csv(argv[2], reps, t);
     else {
