@@ -1,5 +1,6 @@
 /* fit_arma.c - conditional-sum-of-squares ARMA with specific lags: residuals, gradient, starts, fit. */
 #include "fit_arma.h"
+#include "fit_arma_pass.h"
 #include "fit_internal.h"
 #include "fit_optim.h"
 #include "hn_status.h"
@@ -24,6 +25,7 @@ struct fit_arma_ws {
     size_t stride;   /* ring row: e, then nm derivatives */
     double *ring;
     double *ring2;   /* second derivatives: nm * nm a row (fit_arma_hessian) */
+    int fast;        /* fit_arma_pass covers the spec */
 };
 
 fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec)
@@ -41,6 +43,7 @@ fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec)
         rows *= 2;
     w->mask = rows - 1;
     w->stride = (size_t)w->nm + 1;
+    w->fast = fit_arma_pass_covers(spec);
     w->ring = calloc(rows * w->stride, sizeof *w->ring);
     if (!w->ring) {
         fit_arma_ws_free(w);
@@ -186,6 +189,10 @@ static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *m
     const fit_spec *s = &w->spec;
     if (n <= (size_t)w->p)
         return HN_EINVAL;
+    if (w->fast && (de || gsum || jtj)) {
+        double g[FIT_MAX_PARAMS];
+        return fit_arma_pass(s, y, n, mpar, e, de, ssr, gsum ? gsum : g, jtj, NULL);
+    }
     const int off = s->mean ? 1 : 0, nar = s->n_ar, nma = s->n_ma;
 #define RESID_CASE(O, A, M) \
     if (off == (O) && nar == (A) && nma == (M)) \
@@ -340,6 +347,10 @@ static int hessian_pass(fit_arma_ws *w, const double *y, size_t n, const double 
     const fit_spec *s = &w->spec;
     if (n <= (size_t)w->p)
         return HN_EINVAL;
+    if (w->fast) {
+        double g[FIT_MAX_PARAMS];
+        return fit_arma_pass(s, y, n, mpar, e, NULL, ssr, gsum ? gsum : g, jtj, hsum);
+    }
     const int off = s->mean ? 1 : 0, nar = s->n_ar, nma = s->n_ma;
 #define HESSIAN_CASE(O, A, M) \
     if (off == (O) && nar == (A) && nma == (M)) \
