@@ -705,6 +705,13 @@ typedef struct {
      * that BFGS2's first evaluation there costs no second pass */
     int memo;
     double mx[FIT_MAX_PARAMS], mf, mg[FIT_MAX_PARAMS];
+    /* the point of the last second-order pass (css_gn with WANT_H), with its
+     * SSR and gradient sums; its residuals are in E and its Hessian sums in
+     * H, which the fit reads instead of a pass of its own when it stops
+     * there */
+    double *e, *H;
+    int hmemo;
+    double hx[FIT_MAX_PARAMS], hssr, hg[FIT_MAX_PARAMS];
 } css_ctx;
 
 static int css_objective(const double *x, double *f, double *grad, void *vctx)
@@ -732,12 +739,27 @@ static int css_objective(const double *x, double *f, double *grad, void *vctx)
 
 /* f, its gradient and the Gauss-Newton matrix M = J'J / SSR at X in one
  * pass (J: the derivative rows de_t/dtheta); M is positive semi-definite and
- * close to the Hessian of f near the optimum. */
-static int css_gn(css_ctx *c, const double *x, double *f, double *g, double *M)
+ * close to the Hessian of f near the optimum.  With WANT_H (and C->H set)
+ * the pass is the second-order one, which gives the same SSR, gradient and
+ * J'J to the last bit and also the residuals and Hessian sums (the memo
+ * above); should it fail, the plain pass decides. */
+static int css_gn(css_ctx *c, const double *x, double *f, double *g, double *M, int want_h)
 {
     const int nm = c->ws->nm;
     double ssr;
-    int rc = resid_pass(c->ws, c->z, c->n, x, NULL, NULL, &ssr, c->gs, M);
+    int rc = HN_EDOMAIN;
+    if (want_h && c->H) {
+        c->hmemo = 0;
+        rc = hessian_pass(c->ws, c->z, c->n, x, c->e, &ssr, c->gs, c->H, M);
+        if (rc == HN_OK) {
+            memcpy(c->hx, x, (size_t)nm * sizeof *x);
+            memcpy(c->hg, c->gs, (size_t)nm * sizeof *c->gs);
+            c->hssr = ssr;
+            c->hmemo = 1;
+        }
+    }
+    if (rc != HN_OK)
+        rc = resid_pass(c->ws, c->z, c->n, x, NULL, NULL, &ssr, c->gs, M);
     if (rc != HN_OK)
         return rc;
     if (!(ssr > 0.0))
@@ -855,13 +877,16 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
     double *x1 = g + nm, *g1 = x1 + nm;
     int steps = 0, passes = 1;
     double f;
-    int rc = css_gn(c, x, &f, g, M);
+    /* without MA terms the start is the least-squares optimum itself, so
+     * the first pass is likely the last */
+    int rc = css_gn(c, x, &f, g, M, c->ws->spec.n_ma == 0);
     if (rc != HN_OK) {
         free(buf);
         return rc;
     }
     int have_L = cholesky(nm, M, L) == 0;
-    while (have_L && steps < 8 && decrement(nm, L, g, u) >= o->grad_tol) {
+    double dec, dec_prev = 0.0;
+    while (have_L && steps < 8 && (dec = decrement(nm, L, g, u)) >= o->grad_tol) {
         if (o->interrupt && *o->interrupt) {
             free(buf);
             return HN_EINTR;
@@ -873,15 +898,20 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
         pre_to_x(&p0, u, x1);
         for (int i = 0; i < nm; i++)
             x1[i] += x[i];
+        /* the decrement falls by about the same factor each step: when that
+         * puts the next one below the tolerance, x1 is likely where the fit
+         * stops, and its pass is the second-order one the fit needs there */
+        int last = steps > 0 && dec * (dec / dec_prev) < o->grad_tol;
         double f1;
         passes++;
-        if (css_gn(c, x1, &f1, g1, M1) != HN_OK ||
+        if (css_gn(c, x1, &f1, g1, M1, last) != HN_OK ||
             f1 > f + 64 * DBL_EPSILON * (1.0 + fabs(f)))
             break;
         memcpy(x, x1, (size_t)nm * sizeof *x);
         memcpy(M, M1, nn * sizeof *M);
         memcpy(g, g1, (size_t)nm * sizeof *g);
         f = f1;
+        dec_prev = dec;
         steps++;
         have_L = cholesky(nm, M, L) == 0;
     }
@@ -899,7 +929,7 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
     rc = HN_ENOCONV;
     for (int round = 0; round < 4 && used < budget; round++) {
         if (round > 0) {
-            if (css_gn(c, x, &f, g, M) != HN_OK)
+            if (css_gn(c, x, &f, g, M, 0) != HN_OK)
                 break;
             passes++;
             have_L = cholesky(nm, M, L) == 0;
@@ -1001,6 +1031,8 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     ctx.n = n;
     ctx.N = (double)(n - p);
     ctx.gs = gs;
+    ctx.e = res->resid;
+    ctx.H = H;
     fit_optim_report rep;
     memset(&rep, 0, sizeof rep);
     if (nm > 0) {
@@ -1033,15 +1065,21 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
      * the exact Hessian of f = 1/2 (log(2 pi SSR/N) + 1),
      *   d2f = A / SSR - 2 g g' / SSR^2,  A = sum (de de' + e d2e), g = sum e de */
     double ssr_z;
-    if (nm > 0)
-        rc = hessian_pass(ws, z, n, x, res->resid, &ssr_z, gs, H, NULL);
-    else
-        rc = fit_arma_resid(ws, z, n, x, res->resid, NULL, &ssr_z, NULL);
-    if (rc != HN_OK || !(ssr_z > 0.0)) {
-        rc = rc == HN_ENOMEM ? rc : HN_ENUMERIC;
-        goto fail;
+    if (nm > 0 && ctx.hmemo && memcmp(x, ctx.hx, (size_t)nm * sizeof *x) == 0) {
+        /* the optimiser stopped at the last second-order pass: its results */
+        ssr_z = ctx.hssr;
+        memcpy(gs, ctx.hg, (size_t)nm * sizeof *gs);
+    } else {
+        if (nm > 0)
+            rc = hessian_pass(ws, z, n, x, res->resid, &ssr_z, gs, H, NULL);
+        else
+            rc = fit_arma_resid(ws, z, n, x, res->resid, NULL, &ssr_z, NULL);
+        if (rc != HN_OK || !(ssr_z > 0.0)) {
+            rc = rc == HN_ENOMEM ? rc : HN_ENUMERIC;
+            goto fail;
+        }
+        res->evaluations++;
     }
-    res->evaluations++;
     const double N = (double)(n - p);
     for (int k = 0; k < nm; k++)
         res->par[k] = x[k];
