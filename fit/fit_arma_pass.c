@@ -22,11 +22,22 @@
 #define UNROLL
 #endif
 
-/* The pair (k, l), k >= l, of the packed lower triangle can have a non-zero
- * second derivative: d2e_t/dth_k dth_l obeys a recursion with zero start
- * whose direct term is 1 for (ar_i, mu), the lagged derivatives for pairs
- * with an MA coefficient, and nothing else.  Elsewhere it is zero. */
+/* Vectors of two doubles (GCC's vector extension: SSE2 on x86-64, plain
+ * scalar code elsewhere): each lane does the operations of the scalar pass
+ * in the same order, so the results are the same to the last bit. */
+typedef double v2d __attribute__((vector_size(16)));
+#define SPLAT(x) ((v2d){ (x), (x) })
+#define NV_MAX ((NM_MAX + 1) / 2)
+
+/* The pair (k, l), k >= l, can have a non-zero second derivative:
+ * d2e_t/dth_k dth_l obeys a recursion with zero start whose direct term is 1
+ * for (ar_i, mu), the lagged derivatives for pairs with an MA coefficient,
+ * and nothing else.  Elsewhere it is zero, and sum (de de' + e d2e) is J'J's
+ * entry. */
 #define NONZERO(k, l) ((k) >= ma0 || (off && (l) == 0 && (k) >= off))
+
+/* Lane L of the vectors V[] holding a row of values. */
+#define LANE(v, l) ((v)[(l) / 2][(l) % 2])
 
 static inline __attribute__((always_inline)) int
 pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, double *e,
@@ -34,7 +45,7 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
           const int nar, const int nma, const int want_j, const int want_h)
 {
     const size_t p = (size_t)fit_spec_max_ar(s);
-    const int nm = off + nar + nma, ma0 = off + nar;
+    const int nm = off + nar + nma, nv = (nm + 1) / 2, ma0 = off + nar;
     const double mu = off ? mpar[0] : 0.0;
     double ar[NM_MAX], ma[Q_MAX];
     ptrdiff_t al[NM_MAX];
@@ -52,25 +63,32 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
         sum_ar += ar[i];
     const double dmu = sum_ar - 1.0;
 
-    /* pe[j], pd[j], ph[j]: e, de and d2e at t - 1 - j (zero before the start) */
-    double pe[Q_MAX], pd[Q_MAX][NM_MAX], ph[Q_MAX][NT_MAX];
-    double acc[NM_MAX], jac[NT_MAX], hac[NT_MAX];
+    /* at t - 1 - j: pe[j] = e, pdv[j] = de, phm[j] = d2e of every (ar_i, mu),
+     * phv[j][r] = the row of d2e of MA coefficient r (zero before the start);
+     * rows of the lower triangle as vectors, row k in k / 2 + 1 of them */
+    double pe[Q_MAX], phm[Q_MAX];
+    v2d pdv[Q_MAX][NV_MAX], phv[Q_MAX][Q_MAX][NV_MAX];
+    v2d accv[NV_MAX], jacv[NM_MAX][NV_MAX], hacv[NM_MAX][NV_MAX];
+    const v2d zero = SPLAT(0.0);
     UNROLL
     for (int j = 0; j < nma; j++) {
-        pe[j] = 0.0;
+        pe[j] = phm[j] = 0.0;
         UNROLL
-        for (int k = 0; k < nm; k++)
-            pd[j][k] = 0.0;
-        UNROLL
-        for (int k = 0; k < NT_MAX; k++)
-            ph[j][k] = 0.0;
+        for (int m = 0; m < nv; m++) {
+            pdv[j][m] = zero;
+            UNROLL
+            for (int r = 0; r < nma; r++)
+                phv[j][r][m] = zero;
+        }
     }
     UNROLL
-    for (int k = 0; k < nm; k++)
-        acc[k] = 0.0;
+    for (int m = 0; m < nv; m++)
+        accv[m] = zero;
     UNROLL
-    for (int k = 0; k < NT_MAX; k++)
-        jac[k] = hac[k] = 0.0;
+    for (int k = 0; k < nm; k++)
+        UNROLL
+        for (int m = 0; m < nv; m++)
+            jacv[k][m] = hacv[k][m] = zero;
     double sum = 0.0, comp = 0.0;      /* Neumaier summation of e_t^2 */
 
     for (size_t t = p; t < n; t++) {
@@ -91,112 +109,126 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
         if (e)
             e[t - p] = et;
 
-        double d[NM_MAX];
+        /* de_t: the direct terms, then minus ma_j times de_{t-1-j}, j in order */
+        double di[2 * NV_MAX];
         if (off)
-            d[0] = dmu;
+            di[0] = dmu;
         UNROLL
         for (int i = 0; i < nar; i++)
-            d[off + i] = -xa[i];
+            di[off + i] = -xa[i];
         UNROLL
         for (int j = 0; j < nma; j++)
-            d[ma0 + j] = -pe[j];
+            di[ma0 + j] = -pe[j];
+        di[2 * nv - 1] = nm % 2 ? 0.0 : di[2 * nv - 1];
+        v2d dv[NV_MAX];
+        UNROLL
+        for (int m = 0; m < nv; m++)
+            dv[m] = (v2d){ di[2 * m], di[2 * m + 1] };
         UNROLL
         for (int j = 0; j < nma; j++)
             UNROLL
-            for (int k = 0; k < nm; k++)
-                d[k] -= ma[j] * pd[j][k];
+            for (int m = 0; m < nv; m++)
+                dv[m] -= SPLAT(ma[j]) * pdv[j][m];
 
         /* second derivatives, each as fit_arma_hessian forms it: per lag j,
          * minus ma_j times its value at t - 1 - j, then (j = 0) the direct
          * term of (ar_i, mu), then the lagged derivative where the pair
-         * holds ma_j (twice on the diagonal) */
-        double h[NT_MAX];
+         * holds ma_j (twice on the diagonal); lanes past the diagonal are
+         * never read */
+        double hm = 1.0;                    /* (ar_i, mu) without MA terms */
+        v2d hv[Q_MAX][NV_MAX];
         if (want_h) {
-            UNROLL
-            for (int k = 0; k < nm; k++)
+            if (nma > 0) {
+                hm = -ma[0] * phm[0];
+                hm += 1.0;
                 UNROLL
-                for (int l = 0; l <= k; l++) {
-                    const int idx = k * (k + 1) / 2 + l;
-                    if (!NONZERO(k, l))
-                        continue;
-                    if (off && l == 0 && k > off && k < ma0) {
-                        h[idx] = h[off * (off + 1) / 2];   /* every (ar_i, mu): one sequence */
-                        continue;
-                    }
-                    double v = 1.0;                 /* (ar_i, mu) without MA terms */
+                for (int j = 1; j < nma; j++)
+                    hm -= ma[j] * phm[j];
+            }
+            UNROLL
+            for (int r = 0; r < nma; r++) {
+                const int k = ma0 + r;
+                UNROLL
+                for (int m = 0; m <= k / 2; m++) {
+                    v2d v = zero;
                     UNROLL
                     for (int j = 0; j < nma; j++) {
                         const int q = ma0 + j;
                         if (j == 0)
-                            v = -ma[0] * ph[0][idx];
+                            v = SPLAT(-ma[0]) * phv[0][r][m];
                         else
-                            v -= ma[j] * ph[j][idx];
-                        if (j == 0 && off && l == 0 && k >= off && k < ma0)
-                            v += 1.0;
-                        if (k == q && l < q)
-                            v -= pd[j][l];
-                        else if (k == q && l == q)
-                            v -= 2.0 * pd[j][q];
-                        else if (l == q && k > q)
-                            v -= pd[j][k];
+                            v -= SPLAT(ma[j]) * phv[j][r][m];
+                        if (k == q && 2 * m <= q)
+                            v -= 2 * m == q ? pdv[j][m] * (v2d){ 2.0, 1.0 }
+                                 : 2 * m + 1 == q ? pdv[j][m] * (v2d){ 1.0, 2.0 } : pdv[j][m];
+                        else if (k > q && q / 2 == m)
+                            v -= q % 2 ? (v2d){ 0.0, LANE(pdv[j], k) } : (v2d){ LANE(pdv[j], k), 0.0 };
                     }
-                    h[idx] = v;
+                    hv[r][m] = v;
                 }
+            }
         }
 
+        const v2d ev = SPLAT(et);
         UNROLL
-        for (int k = 0; k < nm; k++)
-            acc[k] += et * d[k];
+        for (int m = 0; m < nv; m++)
+            accv[m] += ev * dv[m];
         if (want_j || want_h) {
             UNROLL
-            for (int k = 0; k < nm; k++)
+            for (int k = 0; k < nm; k++) {
+                const v2d dk = SPLAT(LANE(dv, k));
                 UNROLL
-                for (int l = 0; l <= k; l++) {
-                    const int idx = k * (k + 1) / 2 + l;
-                    double dd = d[k] * d[l];
-                    jac[idx] += dd;
-                    if (want_h && NONZERO(k, l))
-                        hac[idx] += dd + et * h[idx];
+                for (int m = 0; m <= k / 2; m++) {
+                    const v2d dd = dk * dv[m];
+                    jacv[k][m] += dd;
+                    if (want_h && k >= ma0)
+                        hacv[k][m] += dd + ev * hv[k - ma0][m];
+                    else if (want_h && off && k >= off && m == 0)
+                        hacv[k][0] += dd + ev * (v2d){ hm, 0.0 };
                 }
+            }
         }
         if (de)
-            memcpy(de + (t - p) * (size_t)nm, d, (size_t)nm * sizeof *d);
+            memcpy(de + (t - p) * (size_t)nm, dv, (size_t)nm * sizeof(double));
 
         UNROLL
         for (int j = nma - 1; j > 0; j--) {
             pe[j] = pe[j - 1];
+            phm[j] = phm[j - 1];
             UNROLL
-            for (int k = 0; k < nm; k++)
-                pd[j][k] = pd[j - 1][k];
-            if (want_h)
-                UNROLL
-                for (int k = 0; k < nm * (nm + 1) / 2; k++)
-                    ph[j][k] = ph[j - 1][k];
+            for (int m = 0; m < nv; m++) {
+                pdv[j][m] = pdv[j - 1][m];
+                if (want_h)
+                    UNROLL
+                    for (int r = 0; r < nma; r++)
+                        phv[j][r][m] = phv[j - 1][r][m];
+            }
         }
         if (nma > 0) {
             pe[0] = et;
+            phm[0] = hm;
             UNROLL
-            for (int k = 0; k < nm; k++)
-                pd[0][k] = d[k];
-            if (want_h)
-                UNROLL
-                for (int k = 0; k < nm; k++)
+            for (int m = 0; m < nv; m++) {
+                pdv[0][m] = dv[m];
+                if (want_h)
                     UNROLL
-                    for (int l = 0; l <= k; l++)
-                        if (NONZERO(k, l))
-                            ph[0][k * (k + 1) / 2 + l] = h[k * (k + 1) / 2 + l];
+                    for (int r = 0; r < nma; r++)
+                        if (m <= (ma0 + r) / 2)
+                            phv[0][r][m] = hv[r][m];
+            }
         }
     }
 
     double tot = sum + comp;
     if (!isfinite(tot))
         return HN_EDOMAIN;
+    double acc[NM_MAX];
+    for (int k = 0; k < nm; k++)
+        acc[k] = LANE(accv, k);
     if (want_h) {
-        /* where the second derivative is zero, the sum is J'J's */
         for (int k = 0; k < nm; k++)
             for (int l = 0; l <= k; l++) {
-                const int idx = k * (k + 1) / 2 + l;
-                const double v = NONZERO(k, l) ? hac[idx] : jac[idx];
+                const double v = NONZERO(k, l) ? LANE(hacv[k], l) : LANE(jacv[k], l);
                 if (!isfinite(v))
                     return HN_EDOMAIN;
                 hsum[k * nm + l] = hsum[l * nm + k] = v;
@@ -212,7 +244,7 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
     if (jtj)
         for (int k = 0; k < nm; k++)
             for (int l = 0; l <= k; l++)
-                jtj[k * nm + l] = jtj[l * nm + k] = jac[k * (k + 1) / 2 + l];
+                jtj[k * nm + l] = jtj[l * nm + k] = LANE(jacv[k], l);
     return HN_OK;
 }
 
