@@ -546,30 +546,27 @@ static int long_ar_normal(const double *ys, size_t nn, size_t M, double ctr, int
     return rc;
 }
 
-int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar)
+/* Kahan-compensated sum: add X to *S with correction *C (every such sum in
+ * this file, in this order of operations). */
+static inline void kahan_add(double *s, double *c, double x)
 {
-    if (!spec || !y || (!mpar && fit_arma_nmean(spec) > 0))
-        return HN_EINVAL;
+    double v = x - *c, u = *s + v;
+    *c = (u - *s) - v;
+    *s = u;
+}
+
+/* fit_arma_start with the sample mean YBAR of Y[0..n-1] given (0 without a
+ * mean), n > max AR lag + 1. */
+static int hr_start(const fit_spec *spec, const double *y, size_t n, double ybar, double *mpar)
+{
     const int off = spec->mean ? 1 : 0, nar = spec->n_ar, nma = spec->n_ma;
     const size_t P = (size_t)fit_spec_max_ar(spec), Q = (size_t)fit_spec_max_ma(spec);
     const int nm = fit_arma_nmean(spec);
-    if (n <= P + 1)
-        return HN_ESHORT;
     for (int k = 0; k < nm; k++)
         mpar[k] = 0.0;
-
     /* the sample mean: the start for mu whenever the regressions cannot say */
-    double ybar = 0.0;
-    if (spec->mean) {
-        double c = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double v = y[t] - c, u = ybar + v;
-            c = (u - ybar) - v;
-            ybar = u;
-        }
-        ybar /= (double)n;
+    if (spec->mean)
         mpar[0] = ybar;
-    }
     if (nm == off)
         return HN_OK;
 
@@ -686,6 +683,22 @@ done:
         rc = HN_OK;
     }
     return rc;
+}
+
+int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar)
+{
+    if (!spec || !y || (!mpar && fit_arma_nmean(spec) > 0))
+        return HN_EINVAL;
+    if (n <= (size_t)fit_spec_max_ar(spec) + 1)
+        return HN_ESHORT;
+    double ybar = 0.0;
+    if (spec->mean) {
+        double c = 0.0;
+        for (size_t t = 0; t < n; t++)
+            kahan_add(&ybar, &c, y[t]);
+        ybar /= (double)n;
+    }
+    return hr_start(spec, y, n, ybar, mpar);
 }
 
 /* ---- the fit ----------------------------------------------------------- */
@@ -984,11 +997,8 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     double loc = 0.0, scale = 0.0;
     if (spec->mean) {
         double c = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double v = y[t] - c, u = loc + v;
-            c = (u - loc) - v;
-            loc = u;
-        }
+        for (size_t t = 0; t < n; t++)
+            kahan_add(&loc, &c, y[t]);
         loc /= (double)n;
     }
     {
@@ -996,9 +1006,8 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
          * squares cannot overflow) */
         double ss = 0.0, c = 0.0;
         for (size_t t = 0; t < n; t++) {
-            double r = y[t] - loc, v = r * r - c, u = ss + v;
-            c = (u - ss) - v;
-            ss = u;
+            double r = y[t] - loc;
+            kahan_add(&ss, &c, r * r);
         }
         scale = sqrt(ss / (double)n);
     }
@@ -1018,11 +1027,16 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
         rc = HN_ENOMEM;
         goto fail;
     }
-    for (size_t t = 0; t < n; t++)
+    /* z, and its mean for the start as fit_arma_start forms it, in one sweep */
+    double zbar = 0.0, zc = 0.0;
+    for (size_t t = 0; t < n; t++) {
         z[t] = (y[t] - loc) / scale;
+        kahan_add(&zbar, &zc, z[t]);
+    }
+    zbar /= (double)n;
 
     double x[FIT_MAX_PARAMS];
-    if ((rc = fit_arma_start(spec, z, n, x)) != HN_OK)
+    if ((rc = hr_start(spec, z, n, spec->mean ? zbar : 0.0, x)) != HN_OK)
         goto fail;
     css_ctx ctx;
     memset(&ctx, 0, sizeof ctx);
