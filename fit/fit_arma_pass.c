@@ -188,8 +188,12 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
                 }
             }
         }
-        if (de)
-            memcpy(de + (t - p) * (size_t)nm, dv, (size_t)nm * sizeof(double));
+        if (de) {
+            double *row = de + (t - p) * (size_t)nm;
+            UNROLL
+            for (int k = 0; k < nm; k++)
+                row[k] = LANE(dv, k);
+        }
 
         UNROLL
         for (int j = nma - 1; j > 0; j--) {
@@ -219,14 +223,18 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
         }
     }
 
+    /* (the loops below unroll too, so that no array above needs memory) */
     double tot = sum + comp;
     if (!isfinite(tot))
         return HN_EDOMAIN;
     double acc[NM_MAX];
+    UNROLL
     for (int k = 0; k < nm; k++)
         acc[k] = LANE(accv, k);
     if (want_h) {
+        UNROLL
         for (int k = 0; k < nm; k++)
+            UNROLL
             for (int l = 0; l <= k; l++) {
                 const double v = NONZERO(k, l) ? LANE(hacv[k], l) : LANE(jacv[k], l);
                 if (!isfinite(v))
@@ -234,15 +242,20 @@ pass_body(const fit_spec *s, const double *y, size_t n, const double *mpar, doub
                 hsum[k * nm + l] = hsum[l * nm + k] = v;
             }
     } else {
+        UNROLL
         for (int k = 0; k < nm; k++)
             if (!isfinite(acc[k]))
                 return HN_EDOMAIN;
     }
     if (ssr)
         *ssr = tot;
-    memcpy(gsum, acc, (size_t)nm * sizeof *acc);
+    UNROLL
+    for (int k = 0; k < nm; k++)
+        gsum[k] = acc[k];
     if (jtj)
+        UNROLL
         for (int k = 0; k < nm; k++)
+            UNROLL
             for (int l = 0; l <= k; l++)
                 jtj[k * nm + l] = jtj[l * nm + k] = LANE(jacv[k], l);
     return HN_OK;
