@@ -57,15 +57,18 @@ int fit_check_input(const double *y, size_t n, const fit_spec *spec)
         if (spec->ma_lag[j] < 1 || spec->ma_lag[j] > FIT_MAX_LAG ||
             (j > 0 && spec->ma_lag[j] <= spec->ma_lag[j - 1]))
             return HN_EINVAL;
-    /* one scan: a non-finite value anywhere outranks a value beyond the limit */
-    int too_big = 0;
-    for (size_t t = 0; t < n; t++) {
-        if (!isfinite(y[t]))
-            return HN_EINVAL;
-        too_big |= fabs(y[t]) > FIT_MAX_ABS_VALUE;
-    }
-    if (too_big)
+    /* a non-finite value anywhere outranks a value beyond the limit; the
+     * first scan has no early exit, so that it vectorises, and only a value
+     * outside the limit (NaN included) needs the second */
+    int out = 0;
+    for (size_t t = 0; t < n; t++)
+        out |= !(fabs(y[t]) <= FIT_MAX_ABS_VALUE);
+    if (out) {
+        for (size_t t = 0; t < n; t++)
+            if (!isfinite(y[t]))
+                return HN_EINVAL;
         return HN_ELIMIT;
+    }
     if (fit_work_bytes(spec, n) > FIT_MAX_WORK_BYTES)
         return HN_ELIMIT;
     if (n < fit_min_obs(spec))

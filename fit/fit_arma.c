@@ -1019,7 +1019,12 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     int rc = fit_result_init(res, spec, n, p, 0);
     if (rc != HN_OK)
         return rc;
-    double *z = malloc(n * sizeof *z);
+    /* the standardised series lives in res->std_resid, grown to n values,
+     * until the standardised residuals replace it at the end (after the last
+     * pass): one array fewer to allocate and touch */
+    double *z = realloc(res->std_resid, n * sizeof *z);
+    if (z)
+        res->std_resid = z;
     double *gs = malloc(((size_t)nm + 1) * sizeof *gs);
     double *H = malloc(((size_t)nm * nm + 1) * sizeof *H);
     fit_arma_ws *ws = fit_arma_ws_alloc(spec);
@@ -1138,14 +1143,12 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     fit_result_criteria(res, nm + 1);
     if ((rc = fit_result_roots(res)) != HN_OK)
         goto fail;
-    free(z);
     free(gs);
     free(H);
     fit_arma_ws_free(ws);
     return HN_OK;
 
 fail:
-    free(z);
     free(gs);
     free(H);
     fit_arma_ws_free(ws);
