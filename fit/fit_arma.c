@@ -703,6 +703,97 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
 
 /* ---- the fit ----------------------------------------------------------- */
 
+/* Two doubles a vector (GCC's vector extension). */
+typedef double v2d __attribute__((vector_size(16)));
+
+/* sum_t (y_t - shift)^(1 + SQUARE) over Y[0..n-1] by Kahan sums in sixteen
+ * interleaved lanes (eight vectors), whose additions overlap instead of
+ * each waiting on the last, then the lanes and the last n mod 16 terms in
+ * one more Kahan sum.  As accurate as one sequential sum, but not always
+ * equal to it in the last bit. */
+#define LANE_VECS 8
+static inline __attribute__((always_inline)) double
+lanes_body(const double *y, size_t n, double shift, const int square)
+{
+    v2d s[LANE_VECS], c[LANE_VECS];
+    const v2d sh = { shift, shift };
+    for (int l = 0; l < LANE_VECS; l++)
+        s[l] = c[l] = sh - sh;
+    size_t t = 0;
+    for (; t + 2 * LANE_VECS <= n; t += 2 * LANE_VECS)
+        _Pragma("GCC unroll 8")
+        for (int l = 0; l < LANE_VECS; l++) {
+            v2d x;
+            memcpy(&x, y + t + 2 * (size_t)l, sizeof x);
+            x -= sh;
+            if (square)
+                x *= x;
+            v2d v = x - c[l], u = s[l] + v;
+            c[l] = (u - s[l]) - v;
+            s[l] = u;
+        }
+    double tot = 0.0, comp = 0.0;
+    for (int l = 0; l < LANE_VECS; l++)
+        for (int i = 0; i < 2; i++) {
+            kahan_add(&tot, &comp, s[l][i]);
+            kahan_add(&tot, &comp, -c[l][i]);
+        }
+    for (; t < n; t++) {
+        double r = y[t] - shift;
+        kahan_add(&tot, &comp, square ? r * r : r);
+    }
+    return tot - comp;
+}
+
+static double lanes_sum(const double *y, size_t n, double shift, int square)
+{
+    return square ? lanes_body(y, n, shift, 1) : lanes_body(y, n, shift, 0);
+}
+
+/* The standardisation of Y[0..n-1]: LOC, the mean (0 without MEAN); SCALE,
+ * the root mean square about it; Z = (y - loc) / scale and ZBAR, the mean
+ * of Z; each by the sequential Kahan sum over t = 0..n-1 that defines it.
+ * Those are three passes, each waiting on its own additions.  Here one pass
+ * runs the three sums side by side, the later two from guesses of loc and
+ * scale (lanes_sum, whose additions overlap), and redoes a sum with the
+ * exact value only when a guess differs from it in any bit: the results
+ * are always those of the three passes. */
+static void standardise(const double *y, size_t n, int mean, double *z, double *loc_out,
+                        double *scale_out, double *zbar_out)
+{
+    const double gl = mean ? lanes_sum(y, n, 0.0, 0) / (double)n : 0.0;
+    const double gs = sqrt(lanes_sum(y, n, gl, 1) / (double)n);
+    double loc = 0.0, cl = 0.0, ss = 0.0, cs = 0.0, zb = 0.0, cz = 0.0;
+    for (size_t t = 0; t < n; t++) {
+        if (mean)
+            kahan_add(&loc, &cl, y[t]);
+        double r = y[t] - gl;
+        kahan_add(&ss, &cs, r * r);
+        z[t] = r / gs;
+        kahan_add(&zb, &cz, z[t]);
+    }
+    if (mean)
+        loc /= (double)n;
+    if (loc != gl) {
+        ss = cs = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            double r = y[t] - loc;
+            kahan_add(&ss, &cs, r * r);
+        }
+    }
+    const double scale = sqrt(ss / (double)n);
+    if (loc != gl || scale != gs) {
+        zb = cz = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            z[t] = (y[t] - loc) / scale;
+            kahan_add(&zb, &cz, z[t]);
+        }
+    }
+    *loc_out = loc;
+    *scale_out = scale;
+    *zbar_out = zb / (double)n;
+}
+
 /* The optimiser works on the series standardised as z = (y - ybar) / scale
  * (no shift without a mean), so that its gradient tolerance does not depend
  * on the units of the data; mu_z = (mu - ybar) / scale, ar and ma unchanged.
@@ -993,29 +1084,6 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     if (n <= p + 1)
         return HN_ESHORT;
 
-    /* location and scale of the standardisation */
-    double loc = 0.0, scale = 0.0;
-    if (spec->mean) {
-        double c = 0.0;
-        for (size_t t = 0; t < n; t++)
-            kahan_add(&loc, &c, y[t]);
-        loc /= (double)n;
-    }
-    {
-        /* second pass about the mean (fit_model refuses |y| > 1e150, so the
-         * squares cannot overflow) */
-        double ss = 0.0, c = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double r = y[t] - loc;
-            kahan_add(&ss, &c, r * r);
-        }
-        scale = sqrt(ss / (double)n);
-    }
-    if (!isfinite(scale) || !isfinite(loc))
-        return HN_ENUMERIC;
-    if (!(scale > 0.0))
-        return HN_ECONST;
-
     int rc = fit_result_init(res, spec, n, p, 0);
     if (rc != HN_OK)
         return rc;
@@ -1032,13 +1100,19 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
         rc = HN_ENOMEM;
         goto fail;
     }
-    /* z, and its mean for the start as fit_arma_start forms it, in one sweep */
-    double zbar = 0.0, zc = 0.0;
-    for (size_t t = 0; t < n; t++) {
-        z[t] = (y[t] - loc) / scale;
-        kahan_add(&zbar, &zc, z[t]);
+    /* location and scale of the standardisation, z, and its mean for the
+     * start as fit_arma_start forms it (fit_model refuses |y| > 1e150, so
+     * the squares cannot overflow) */
+    double loc, scale, zbar;
+    standardise(y, n, spec->mean, z, &loc, &scale, &zbar);
+    if (!isfinite(scale) || !isfinite(loc)) {
+        rc = HN_ENUMERIC;
+        goto fail;
     }
-    zbar /= (double)n;
+    if (!(scale > 0.0)) {
+        rc = HN_ECONST;
+        goto fail;
+    }
 
     double x[FIT_MAX_PARAMS];
     if ((rc = hr_start(spec, z, n, spec->mean ? zbar : 0.0, x)) != HN_OK)
