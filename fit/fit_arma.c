@@ -12,6 +12,10 @@
 
 #include <lapacke.h>
 
+/* Two doubles a vector (GCC's vector extension: SSE2 on x86-64, scalar code
+ * elsewhere); each lane does the scalar operations. */
+typedef double v2d __attribute__((vector_size(16)));
+
 int fit_arma_nmean(const fit_spec *spec)
 {
     return (spec->mean ? 1 : 0) + spec->n_ar + spec->n_ma;
@@ -505,12 +509,15 @@ static int long_ar_normal(const double *ys, size_t nn, size_t M, double ctr, int
     double *b = A + c * c, *z = b + c, *S = z + nn;
     for (size_t t = 0; t < nn; t++)
         z[t] = ys[t] - ctr;
-    /* S[d] = S(0, d) and T = sum_t z_t over the window t = M..nn-1 */
-    for (size_t d = 0; d <= M; d++) {
-        double acc = 0.0;
-        for (size_t t = M; t < nn; t++)
-            acc += z[t] * z[t - d];
-        S[d] = acc;
+    /* S[d] = S(0, d) and T = sum_t z_t over the window t = M..nn-1; the
+     * M + 1 sums advance side by side, each still in the order of t, so
+     * that their additions overlap */
+    for (size_t d = 0; d <= M; d++)
+        S[d] = 0.0;
+    for (size_t t = M; t < nn; t++) {
+        const double zt = z[t];
+        for (size_t d = 0; d <= M; d++)
+            S[d] += zt * z[t - d];
     }
     double tk = 0.0;
     for (size_t t = M; t < nn; t++)
@@ -623,11 +630,24 @@ static int hr_start(const fit_spec *spec, const double *y, size_t n, double ybar
             if ((rc = lsq(A, B, rows, (int)cols)) != HN_OK)
                 goto done;
         }
-        for (size_t t = m; t < nn; t++) {
-            double r = ys[t] - ctr - (off ? B[0] : 0.0);
-            for (size_t k = 1; k <= m; k++)
-                r -= B[off + k - 1] * (ys[t - k] - ctr);
-            ehat[t] = r;
+        /* lag by lag over all t (each residual takes its terms in the same
+         * order as one t at a time, and the t are independent) */
+        for (size_t t = m; t < nn; t++)
+            ehat[t] = ys[t] - ctr - (off ? B[0] : 0.0);
+        const v2d cv = { ctr, ctr };
+        for (size_t k = 1; k <= m; k++) {
+            const double bk = B[off + k - 1];
+            const v2d bv = { bk, bk };
+            size_t t = m;
+            for (; t + 2 <= nn; t += 2) {
+                v2d ev, xv;
+                memcpy(&ev, ehat + t, sizeof ev);
+                memcpy(&xv, ys + t - k, sizeof xv);
+                ev -= bv * (xv - cv);
+                memcpy(ehat + t, &ev, sizeof ev);
+            }
+            for (; t < nn; t++)
+                ehat[t] -= bk * (ys[t - k] - ctr);
         }
         free(A);
         free(B);
@@ -702,9 +722,6 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
 }
 
 /* ---- the fit ----------------------------------------------------------- */
-
-/* Two doubles a vector (GCC's vector extension). */
-typedef double v2d __attribute__((vector_size(16)));
 
 /* sum_t (y_t - shift)^(1 + SQUARE) over Y[0..n-1] by Kahan sums in sixteen
  * interleaved lanes (eight vectors), whose additions overlap instead of
