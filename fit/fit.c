@@ -7,6 +7,7 @@
 #include "hn_status.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -60,9 +61,20 @@ int fit_check_input(const double *y, size_t n, const fit_spec *spec)
     /* a non-finite value anywhere outranks a value beyond the limit; the
      * first scan has no early exit, so that it vectorises, and only a value
      * outside the limit (NaN included) needs the second */
-    int out = 0;
-    for (size_t t = 0; t < n; t++)
-        out |= !(fabs(y[t]) <= FIT_MAX_ABS_VALUE);
+    typedef double v2d __attribute__((vector_size(16)));
+    typedef long long v2i __attribute__((vector_size(16)));
+    const v2d lim = { FIT_MAX_ABS_VALUE, FIT_MAX_ABS_VALUE };
+    const v2i abs_bits = { INT64_MAX, INT64_MAX };
+    v2i outv = { 0, 0 };
+    size_t t0 = 0;
+    for (; t0 + 2 <= n; t0 += 2) {      /* two at a time; a NaN compares false */
+        v2d v;
+        memcpy(&v, y + t0, sizeof v);
+        outv |= ~((v2d)((v2i)v & abs_bits) <= lim);
+    }
+    int out = (outv[0] | outv[1]) != 0;
+    for (; t0 < n; t0++)
+        out |= !(fabs(y[t0]) <= FIT_MAX_ABS_VALUE);
     if (out) {
         for (size_t t = 0; t < n; t++)
             if (!isfinite(y[t]))
