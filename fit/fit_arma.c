@@ -1200,21 +1200,23 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     res->loglik = -0.5 * N * (log(2.0 * M_PI * res->sigma2) + 1.0);
     const double sd = sqrt(res->sigma2);
     {
-        /* two at a time in vectors (the same operations on each) */
+        /* two at a time in vectors (the same operations on each); the
+         * arrays in locals, which the stores cannot change */
         const v2d sv = { scale, scale }, dv = { sd, sd };
+        double *const rv = res->resid, *const st = res->std_resid;
         size_t t = 0;
         for (; t + 2 <= n - p; t += 2) {
             v2d et;
-            memcpy(&et, res->resid + t, sizeof et);
+            memcpy(&et, rv + t, sizeof et);
             et *= sv;
-            memcpy(res->resid + t, &et, sizeof et);
+            memcpy(rv + t, &et, sizeof et);
             et /= dv;
-            memcpy(res->std_resid + t, &et, sizeof et);
+            memcpy(st + t, &et, sizeof et);
         }
         for (; t < n - p; t++) {
-            double et = res->resid[t] * scale;
-            res->resid[t] = et;
-            res->std_resid[t] = et / sd;
+            double et = rv[t] * scale;
+            rv[t] = et;
+            st[t] = et / sd;
         }
     }
 
