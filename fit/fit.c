@@ -7,6 +7,7 @@
 #include "hn_status.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -57,15 +58,29 @@ int fit_check_input(const double *y, size_t n, const fit_spec *spec)
         if (spec->ma_lag[j] < 1 || spec->ma_lag[j] > FIT_MAX_LAG ||
             (j > 0 && spec->ma_lag[j] <= spec->ma_lag[j - 1]))
             return HN_EINVAL;
-    /* one scan: a non-finite value anywhere outranks a value beyond the limit */
-    int too_big = 0;
-    for (size_t t = 0; t < n; t++) {
-        if (!isfinite(y[t]))
-            return HN_EINVAL;
-        too_big |= fabs(y[t]) > FIT_MAX_ABS_VALUE;
+    /* a non-finite value anywhere outranks a value beyond the limit; the
+     * first scan has no early exit, so that it vectorises, and only a value
+     * outside the limit (NaN included) needs the second */
+    typedef double v2d __attribute__((vector_size(16)));
+    typedef long long v2i __attribute__((vector_size(16)));
+    const v2d lim = { FIT_MAX_ABS_VALUE, FIT_MAX_ABS_VALUE };
+    const v2i abs_bits = { INT64_MAX, INT64_MAX };
+    v2i outv = { 0, 0 };
+    size_t t0 = 0;
+    for (; t0 + 2 <= n; t0 += 2) {      /* two at a time; a NaN compares false */
+        v2d v;
+        memcpy(&v, y + t0, sizeof v);
+        outv |= ~((v2d)((v2i)v & abs_bits) <= lim);
     }
-    if (too_big)
+    int out = (outv[0] | outv[1]) != 0;
+    for (; t0 < n; t0++)
+        out |= !(fabs(y[t0]) <= FIT_MAX_ABS_VALUE);
+    if (out) {
+        for (size_t t = 0; t < n; t++)
+            if (!isfinite(y[t]))
+                return HN_EINVAL;
         return HN_ELIMIT;
+    }
     if (fit_work_bytes(spec, n) > FIT_MAX_WORK_BYTES)
         return HN_ELIMIT;
     if (n < fit_min_obs(spec))

@@ -1,5 +1,6 @@
 /* fit_arma.c - conditional-sum-of-squares ARMA with specific lags: residuals, gradient, starts, fit. */
 #include "fit_arma.h"
+#include "fit_arma_pass.h"
 #include "fit_internal.h"
 #include "fit_optim.h"
 #include "hn_status.h"
@@ -10,6 +11,10 @@
 #include <string.h>
 
 #include <lapacke.h>
+
+/* Two doubles a vector (GCC's vector extension: SSE2 on x86-64, scalar code
+ * elsewhere); each lane does the scalar operations. */
+typedef double v2d __attribute__((vector_size(16)));
 
 int fit_arma_nmean(const fit_spec *spec)
 {
@@ -24,6 +29,7 @@ struct fit_arma_ws {
     size_t stride;   /* ring row: e, then nm derivatives */
     double *ring;
     double *ring2;   /* second derivatives: nm * nm a row (fit_arma_hessian) */
+    int fast;        /* fit_arma_pass covers the spec */
 };
 
 fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec)
@@ -41,6 +47,7 @@ fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec)
         rows *= 2;
     w->mask = rows - 1;
     w->stride = (size_t)w->nm + 1;
+    w->fast = fit_arma_pass_covers(spec);
     w->ring = calloc(rows * w->stride, sizeof *w->ring);
     if (!w->ring) {
         fit_arma_ws_free(w);
@@ -186,6 +193,10 @@ static int resid_pass(fit_arma_ws *w, const double *y, size_t n, const double *m
     const fit_spec *s = &w->spec;
     if (n <= (size_t)w->p)
         return HN_EINVAL;
+    if (w->fast && (de || gsum || jtj)) {
+        double g[FIT_MAX_PARAMS];
+        return fit_arma_pass(s, y, n, mpar, e, de, ssr, gsum ? gsum : g, jtj, NULL);
+    }
     const int off = s->mean ? 1 : 0, nar = s->n_ar, nma = s->n_ma;
 #define RESID_CASE(O, A, M) \
     if (off == (O) && nar == (A) && nma == (M)) \
@@ -340,6 +351,10 @@ static int hessian_pass(fit_arma_ws *w, const double *y, size_t n, const double 
     const fit_spec *s = &w->spec;
     if (n <= (size_t)w->p)
         return HN_EINVAL;
+    if (w->fast) {
+        double g[FIT_MAX_PARAMS];
+        return fit_arma_pass(s, y, n, mpar, e, NULL, ssr, gsum ? gsum : g, jtj, hsum);
+    }
     const int off = s->mean ? 1 : 0, nar = s->n_ar, nma = s->n_ma;
 #define HESSIAN_CASE(O, A, M) \
     if (off == (O) && nar == (A) && nma == (M)) \
@@ -494,12 +509,15 @@ static int long_ar_normal(const double *ys, size_t nn, size_t M, double ctr, int
     double *b = A + c * c, *z = b + c, *S = z + nn;
     for (size_t t = 0; t < nn; t++)
         z[t] = ys[t] - ctr;
-    /* S[d] = S(0, d) and T = sum_t z_t over the window t = M..nn-1 */
-    for (size_t d = 0; d <= M; d++) {
-        double acc = 0.0;
-        for (size_t t = M; t < nn; t++)
-            acc += z[t] * z[t - d];
-        S[d] = acc;
+    /* S[d] = S(0, d) and T = sum_t z_t over the window t = M..nn-1; the
+     * M + 1 sums advance side by side, each still in the order of t, so
+     * that their additions overlap */
+    for (size_t d = 0; d <= M; d++)
+        S[d] = 0.0;
+    for (size_t t = M; t < nn; t++) {
+        const double zt = z[t];
+        for (size_t d = 0; d <= M; d++)
+            S[d] += zt * z[t - d];
     }
     double tk = 0.0;
     for (size_t t = M; t < nn; t++)
@@ -535,30 +553,27 @@ static int long_ar_normal(const double *ys, size_t nn, size_t M, double ctr, int
     return rc;
 }
 
-int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar)
+/* Kahan-compensated sum: add X to *S with correction *C (every such sum in
+ * this file, in this order of operations). */
+static inline void kahan_add(double *s, double *c, double x)
 {
-    if (!spec || !y || (!mpar && fit_arma_nmean(spec) > 0))
-        return HN_EINVAL;
+    double v = x - *c, u = *s + v;
+    *c = (u - *s) - v;
+    *s = u;
+}
+
+/* fit_arma_start with the sample mean YBAR of Y[0..n-1] given (0 without a
+ * mean), n > max AR lag + 1. */
+static int hr_start(const fit_spec *spec, const double *y, size_t n, double ybar, double *mpar)
+{
     const int off = spec->mean ? 1 : 0, nar = spec->n_ar, nma = spec->n_ma;
     const size_t P = (size_t)fit_spec_max_ar(spec), Q = (size_t)fit_spec_max_ma(spec);
     const int nm = fit_arma_nmean(spec);
-    if (n <= P + 1)
-        return HN_ESHORT;
     for (int k = 0; k < nm; k++)
         mpar[k] = 0.0;
-
     /* the sample mean: the start for mu whenever the regressions cannot say */
-    double ybar = 0.0;
-    if (spec->mean) {
-        double c = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double v = y[t] - c, u = ybar + v;
-            c = (u - ybar) - v;
-            ybar = u;
-        }
-        ybar /= (double)n;
+    if (spec->mean)
         mpar[0] = ybar;
-    }
     if (nm == off)
         return HN_OK;
 
@@ -615,11 +630,24 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
             if ((rc = lsq(A, B, rows, (int)cols)) != HN_OK)
                 goto done;
         }
-        for (size_t t = m; t < nn; t++) {
-            double r = ys[t] - ctr - (off ? B[0] : 0.0);
-            for (size_t k = 1; k <= m; k++)
-                r -= B[off + k - 1] * (ys[t - k] - ctr);
-            ehat[t] = r;
+        /* lag by lag over all t (each residual takes its terms in the same
+         * order as one t at a time, and the t are independent) */
+        for (size_t t = m; t < nn; t++)
+            ehat[t] = ys[t] - ctr - (off ? B[0] : 0.0);
+        const v2d cv = { ctr, ctr };
+        for (size_t k = 1; k <= m; k++) {
+            const double bk = B[off + k - 1];
+            const v2d bv = { bk, bk };
+            size_t t = m;
+            for (; t + 2 <= nn; t += 2) {
+                v2d ev, xv;
+                memcpy(&ev, ehat + t, sizeof ev);
+                memcpy(&xv, ys + t - k, sizeof xv);
+                ev -= bv * (xv - cv);
+                memcpy(ehat + t, &ev, sizeof ev);
+            }
+            for (; t < nn; t++)
+                ehat[t] -= bk * (ys[t - k] - ctr);
         }
         free(A);
         free(B);
@@ -677,7 +705,111 @@ done:
     return rc;
 }
 
+int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar)
+{
+    if (!spec || !y || (!mpar && fit_arma_nmean(spec) > 0))
+        return HN_EINVAL;
+    if (n <= (size_t)fit_spec_max_ar(spec) + 1)
+        return HN_ESHORT;
+    double ybar = 0.0;
+    if (spec->mean) {
+        double c = 0.0;
+        for (size_t t = 0; t < n; t++)
+            kahan_add(&ybar, &c, y[t]);
+        ybar /= (double)n;
+    }
+    return hr_start(spec, y, n, ybar, mpar);
+}
+
 /* ---- the fit ----------------------------------------------------------- */
+
+/* sum_t (y_t - shift)^(1 + SQUARE) over Y[0..n-1] by Kahan sums in sixteen
+ * interleaved lanes (eight vectors), whose additions overlap instead of
+ * each waiting on the last, then the lanes and the last n mod 16 terms in
+ * one more Kahan sum.  As accurate as one sequential sum, but not always
+ * equal to it in the last bit. */
+#define LANE_VECS 8
+static inline __attribute__((always_inline)) double
+lanes_body(const double *y, size_t n, double shift, const int square)
+{
+    v2d s[LANE_VECS], c[LANE_VECS];
+    const v2d sh = { shift, shift };
+    for (int l = 0; l < LANE_VECS; l++)
+        s[l] = c[l] = sh - sh;
+    size_t t = 0;
+    for (; t + 2 * LANE_VECS <= n; t += 2 * LANE_VECS)
+        _Pragma("GCC unroll 8")
+        for (int l = 0; l < LANE_VECS; l++) {
+            v2d x;
+            memcpy(&x, y + t + 2 * (size_t)l, sizeof x);
+            x -= sh;
+            if (square)
+                x *= x;
+            v2d v = x - c[l], u = s[l] + v;
+            c[l] = (u - s[l]) - v;
+            s[l] = u;
+        }
+    double tot = 0.0, comp = 0.0;
+    for (int l = 0; l < LANE_VECS; l++)
+        for (int i = 0; i < 2; i++) {
+            kahan_add(&tot, &comp, s[l][i]);
+            kahan_add(&tot, &comp, -c[l][i]);
+        }
+    for (; t < n; t++) {
+        double r = y[t] - shift;
+        kahan_add(&tot, &comp, square ? r * r : r);
+    }
+    return tot - comp;
+}
+
+static double lanes_sum(const double *y, size_t n, double shift, int square)
+{
+    return square ? lanes_body(y, n, shift, 1) : lanes_body(y, n, shift, 0);
+}
+
+/* The standardisation of Y[0..n-1]: LOC, the mean (0 without MEAN); SCALE,
+ * the root mean square about it; Z = (y - loc) / scale and ZBAR, the mean
+ * of Z; each by the sequential Kahan sum over t = 0..n-1 that defines it.
+ * Those are three passes, each waiting on its own additions.  Here one pass
+ * runs the three sums side by side, the later two from guesses of loc and
+ * scale (lanes_sum, whose additions overlap), and redoes a sum with the
+ * exact value only when a guess differs from it in any bit: the results
+ * are always those of the three passes. */
+static void standardise(const double *y, size_t n, int mean, double *z, double *loc_out,
+                        double *scale_out, double *zbar_out)
+{
+    const double gl = mean ? lanes_sum(y, n, 0.0, 0) / (double)n : 0.0;
+    const double gs = sqrt(lanes_sum(y, n, gl, 1) / (double)n);
+    double loc = 0.0, cl = 0.0, ss = 0.0, cs = 0.0, zb = 0.0, cz = 0.0;
+    for (size_t t = 0; t < n; t++) {
+        if (mean)
+            kahan_add(&loc, &cl, y[t]);
+        double r = y[t] - gl;
+        kahan_add(&ss, &cs, r * r);
+        z[t] = r / gs;
+        kahan_add(&zb, &cz, z[t]);
+    }
+    if (mean)
+        loc /= (double)n;
+    if (loc != gl) {
+        ss = cs = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            double r = y[t] - loc;
+            kahan_add(&ss, &cs, r * r);
+        }
+    }
+    const double scale = sqrt(ss / (double)n);
+    if (loc != gl || scale != gs) {
+        zb = cz = 0.0;
+        for (size_t t = 0; t < n; t++) {
+            z[t] = (y[t] - loc) / scale;
+            kahan_add(&zb, &cz, z[t]);
+        }
+    }
+    *loc_out = loc;
+    *scale_out = scale;
+    *zbar_out = zb / (double)n;
+}
 
 /* The optimiser works on the series standardised as z = (y - ybar) / scale
  * (no shift without a mean), so that its gradient tolerance does not depend
@@ -694,6 +826,13 @@ typedef struct {
      * that BFGS2's first evaluation there costs no second pass */
     int memo;
     double mx[FIT_MAX_PARAMS], mf, mg[FIT_MAX_PARAMS];
+    /* the point of the last second-order pass (css_gn with WANT_H), with its
+     * SSR and gradient sums; its residuals are in E and its Hessian sums in
+     * H, which the fit reads instead of a pass of its own when it stops
+     * there */
+    double *e, *H;
+    int hmemo;
+    double hx[FIT_MAX_PARAMS], hssr, hg[FIT_MAX_PARAMS];
 } css_ctx;
 
 static int css_objective(const double *x, double *f, double *grad, void *vctx)
@@ -721,12 +860,27 @@ static int css_objective(const double *x, double *f, double *grad, void *vctx)
 
 /* f, its gradient and the Gauss-Newton matrix M = J'J / SSR at X in one
  * pass (J: the derivative rows de_t/dtheta); M is positive semi-definite and
- * close to the Hessian of f near the optimum. */
-static int css_gn(css_ctx *c, const double *x, double *f, double *g, double *M)
+ * close to the Hessian of f near the optimum.  With WANT_H (and C->H set)
+ * the pass is the second-order one, which gives the same SSR, gradient and
+ * J'J to the last bit and also the residuals and Hessian sums (the memo
+ * above); should it fail, the plain pass decides. */
+static int css_gn(css_ctx *c, const double *x, double *f, double *g, double *M, int want_h)
 {
     const int nm = c->ws->nm;
     double ssr;
-    int rc = resid_pass(c->ws, c->z, c->n, x, NULL, NULL, &ssr, c->gs, M);
+    int rc = HN_EDOMAIN;
+    if (want_h && c->H) {
+        c->hmemo = 0;
+        rc = hessian_pass(c->ws, c->z, c->n, x, c->e, &ssr, c->gs, c->H, M);
+        if (rc == HN_OK) {
+            memcpy(c->hx, x, (size_t)nm * sizeof *x);
+            memcpy(c->hg, c->gs, (size_t)nm * sizeof *c->gs);
+            c->hssr = ssr;
+            c->hmemo = 1;
+        }
+    }
+    if (rc != HN_OK)
+        rc = resid_pass(c->ws, c->z, c->n, x, NULL, NULL, &ssr, c->gs, M);
     if (rc != HN_OK)
         return rc;
     if (!(ssr > 0.0))
@@ -844,13 +998,16 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
     double *x1 = g + nm, *g1 = x1 + nm;
     int steps = 0, passes = 1;
     double f;
-    int rc = css_gn(c, x, &f, g, M);
+    /* without MA terms the start is the least-squares optimum itself, so
+     * the first pass is likely the last */
+    int rc = css_gn(c, x, &f, g, M, c->ws->spec.n_ma == 0);
     if (rc != HN_OK) {
         free(buf);
         return rc;
     }
     int have_L = cholesky(nm, M, L) == 0;
-    while (have_L && steps < 8 && decrement(nm, L, g, u) >= o->grad_tol) {
+    double dec, dec_prev = 0.0;
+    while (have_L && steps < 8 && (dec = decrement(nm, L, g, u)) >= o->grad_tol) {
         if (o->interrupt && *o->interrupt) {
             free(buf);
             return HN_EINTR;
@@ -862,15 +1019,20 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
         pre_to_x(&p0, u, x1);
         for (int i = 0; i < nm; i++)
             x1[i] += x[i];
+        /* the decrement falls by about the same factor each step: when that
+         * puts the next one below the tolerance, x1 is likely where the fit
+         * stops, and its pass is the second-order one the fit needs there */
+        int last = steps > 0 && dec * (dec / dec_prev) < o->grad_tol;
         double f1;
         passes++;
-        if (css_gn(c, x1, &f1, g1, M1) != HN_OK ||
+        if (css_gn(c, x1, &f1, g1, M1, last) != HN_OK ||
             f1 > f + 64 * DBL_EPSILON * (1.0 + fabs(f)))
             break;
         memcpy(x, x1, (size_t)nm * sizeof *x);
         memcpy(M, M1, nn * sizeof *M);
         memcpy(g, g1, (size_t)nm * sizeof *g);
         f = f1;
+        dec_prev = dec;
         steps++;
         have_L = cholesky(nm, M, L) == 0;
     }
@@ -888,7 +1050,7 @@ static int css_minimise(css_ctx *c, double *x, const fit_options *o, fit_optim_r
     rc = HN_ENOCONV;
     for (int round = 0; round < 4 && used < budget; round++) {
         if (round > 0) {
-            if (css_gn(c, x, &f, g, M) != HN_OK)
+            if (css_gn(c, x, &f, g, M, 0) != HN_OK)
                 break;
             passes++;
             have_L = cholesky(nm, M, L) == 0;
@@ -939,37 +1101,15 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     if (n <= p + 1)
         return HN_ESHORT;
 
-    /* location and scale of the standardisation */
-    double loc = 0.0, scale = 0.0;
-    if (spec->mean) {
-        double c = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double v = y[t] - c, u = loc + v;
-            c = (u - loc) - v;
-            loc = u;
-        }
-        loc /= (double)n;
-    }
-    {
-        /* second pass about the mean (fit_model refuses |y| > 1e150, so the
-         * squares cannot overflow) */
-        double ss = 0.0, c = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double r = y[t] - loc, v = r * r - c, u = ss + v;
-            c = (u - ss) - v;
-            ss = u;
-        }
-        scale = sqrt(ss / (double)n);
-    }
-    if (!isfinite(scale) || !isfinite(loc))
-        return HN_ENUMERIC;
-    if (!(scale > 0.0))
-        return HN_ECONST;
-
     int rc = fit_result_init(res, spec, n, p, 0);
     if (rc != HN_OK)
         return rc;
-    double *z = malloc(n * sizeof *z);
+    /* the standardised series lives in res->std_resid, grown to n values,
+     * until the standardised residuals replace it at the end (after the last
+     * pass): one array fewer to allocate and touch */
+    double *z = realloc(res->std_resid, n * sizeof *z);
+    if (z)
+        res->std_resid = z;
     double *gs = malloc(((size_t)nm + 1) * sizeof *gs);
     double *H = malloc(((size_t)nm * nm + 1) * sizeof *H);
     fit_arma_ws *ws = fit_arma_ws_alloc(spec);
@@ -977,11 +1117,22 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
         rc = HN_ENOMEM;
         goto fail;
     }
-    for (size_t t = 0; t < n; t++)
-        z[t] = (y[t] - loc) / scale;
+    /* location and scale of the standardisation, z, and its mean for the
+     * start as fit_arma_start forms it (fit_model refuses |y| > 1e150, so
+     * the squares cannot overflow) */
+    double loc, scale, zbar;
+    standardise(y, n, spec->mean, z, &loc, &scale, &zbar);
+    if (!isfinite(scale) || !isfinite(loc)) {
+        rc = HN_ENUMERIC;
+        goto fail;
+    }
+    if (!(scale > 0.0)) {
+        rc = HN_ECONST;
+        goto fail;
+    }
 
     double x[FIT_MAX_PARAMS];
-    if ((rc = fit_arma_start(spec, z, n, x)) != HN_OK)
+    if ((rc = hr_start(spec, z, n, spec->mean ? zbar : 0.0, x)) != HN_OK)
         goto fail;
     css_ctx ctx;
     memset(&ctx, 0, sizeof ctx);
@@ -990,6 +1141,8 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     ctx.n = n;
     ctx.N = (double)(n - p);
     ctx.gs = gs;
+    ctx.e = res->resid;
+    ctx.H = H;
     fit_optim_report rep;
     memset(&rep, 0, sizeof rep);
     if (nm > 0) {
@@ -1022,15 +1175,21 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
      * the exact Hessian of f = 1/2 (log(2 pi SSR/N) + 1),
      *   d2f = A / SSR - 2 g g' / SSR^2,  A = sum (de de' + e d2e), g = sum e de */
     double ssr_z;
-    if (nm > 0)
-        rc = hessian_pass(ws, z, n, x, res->resid, &ssr_z, gs, H, NULL);
-    else
-        rc = fit_arma_resid(ws, z, n, x, res->resid, NULL, &ssr_z, NULL);
-    if (rc != HN_OK || !(ssr_z > 0.0)) {
-        rc = rc == HN_ENOMEM ? rc : HN_ENUMERIC;
-        goto fail;
+    if (nm > 0 && ctx.hmemo && memcmp(x, ctx.hx, (size_t)nm * sizeof *x) == 0) {
+        /* the optimiser stopped at the last second-order pass: its results */
+        ssr_z = ctx.hssr;
+        memcpy(gs, ctx.hg, (size_t)nm * sizeof *gs);
+    } else {
+        if (nm > 0)
+            rc = hessian_pass(ws, z, n, x, res->resid, &ssr_z, gs, H, NULL);
+        else
+            rc = fit_arma_resid(ws, z, n, x, res->resid, NULL, &ssr_z, NULL);
+        if (rc != HN_OK || !(ssr_z > 0.0)) {
+            rc = rc == HN_ENOMEM ? rc : HN_ENUMERIC;
+            goto fail;
+        }
+        res->evaluations++;
     }
-    res->evaluations++;
     const double N = (double)(n - p);
     for (int k = 0; k < nm; k++)
         res->par[k] = x[k];
@@ -1040,10 +1199,25 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     res->sigma2 = ssr / N;
     res->loglik = -0.5 * N * (log(2.0 * M_PI * res->sigma2) + 1.0);
     const double sd = sqrt(res->sigma2);
-    for (size_t t = 0; t < n - p; t++) {
-        double et = res->resid[t] * scale;
-        res->resid[t] = et;
-        res->std_resid[t] = et / sd;
+    {
+        /* two at a time in vectors (the same operations on each); the
+         * arrays in locals, which the stores cannot change */
+        const v2d sv = { scale, scale }, dv = { sd, sd };
+        double *const rv = res->resid, *const st = res->std_resid;
+        size_t t = 0;
+        for (; t + 2 <= n - p; t += 2) {
+            v2d et;
+            memcpy(&et, rv + t, sizeof et);
+            et *= sv;
+            memcpy(rv + t, &et, sizeof et);
+            et /= dv;
+            memcpy(st + t, &et, sizeof et);
+        }
+        for (; t < n - p; t++) {
+            double et = rv[t] * scale;
+            rv[t] = et;
+            st[t] = et / sd;
+        }
     }
 
     /* standard errors: the Hessian of the profile negative log-likelihood
@@ -1075,14 +1249,12 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     fit_result_criteria(res, nm + 1);
     if ((rc = fit_result_roots(res)) != HN_OK)
         goto fail;
-    free(z);
     free(gs);
     free(H);
     fit_arma_ws_free(ws);
     return HN_OK;
 
 fail:
-    free(z);
     free(gs);
     free(H);
     fit_arma_ws_free(ws);

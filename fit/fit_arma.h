@@ -11,7 +11,8 @@ int fit_arma_nmean(const fit_spec *spec);
 
 /* Workspace for fit_arma_resid: a ring of the last (max MA lag + 1) residuals
  * and their derivatives, sized once per spec so the residual pass allocates
- * nothing.  Returns NULL when out of memory; release with fit_arma_ws_free. */
+ * nothing (the passes of fit_arma_pass.h, for MA lags 1..q, keep them in
+ * locals instead).  Returns NULL when out of memory; release with fit_arma_ws_free. */
 typedef struct fit_arma_ws fit_arma_ws;
 fit_arma_ws *fit_arma_ws_alloc(const fit_spec *spec);
 void fit_arma_ws_free(fit_arma_ws *w);
