@@ -2,10 +2,10 @@
 #include "sh_csv.h"
 
 #include "hn_status.h"
+#include "sh_csv_num.h"
 
 #include <csv.h>
 #include <errno.h>
-#include <float.h>
 #include <locale.h>
 #include <math.h>
 #include <stdarg.h>
@@ -119,142 +119,6 @@ static int fail(reader *R, int rc, long line, long col, const char *fmt, ...)
     return rc;
 }
 
-static int is_blank(char c)
-{
-    return c == ' ' || c == '\t';
-}
-
-static void trim(const char **s, size_t *len)
-{
-    const char *p = *s, *e = *s + *len;
-    while (p < e && is_blank(*p))
-        p++;
-    while (e > p && is_blank(e[-1]))
-        e--;
-    *s = p;
-    *len = (size_t)(e - p);
-}
-
-/* ---- numbers ------------------------------------------------------------ */
-
-typedef enum { NUM_OK, NUM_EMPTY, NUM_TEXT, NUM_COMMA, NUM_NANINF, NUM_RANGE } num_result;
-
-static int word_at(const char *s, size_t len, const char *w)
-{
-    return strlen(w) == len && strncasecmp(s, w, len) == 0;
-}
-
-/* Strict C-locale decimal number: [sign] digits [. digits] [e [sign] digits]
- * (digits on at least one side of the point).  S[LEN] must not be a digit
- * (libcsv ends every field with NUL). */
-static num_result parse_number(const char *s, size_t len, double *v)
-{
-    /* exact powers of ten (10^22 is the largest that a double holds exactly) */
-    static const double p10[23] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                                   1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
-                                   1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
-    trim(&s, &len);
-    if (len == 0)
-        return NUM_EMPTY;
-    size_t i = 0, nd = 0;
-    uint64_t mant = 0;   /* significant digits, while they fit */
-    int sig = 0, inexact = 0;
-    long e10 = 0;
-    int neg = s[0] == '-';
-    if (s[i] == '+' || s[i] == '-')
-        i++;
-    for (; i < len && s[i] >= '0' && s[i] <= '9'; i++, nd++) {
-        if (mant == 0 && s[i] == '0')
-            continue;
-        if (sig < 19)
-            mant = mant * 10 + (uint64_t)(s[i] - '0'), sig++;
-        else
-            inexact = 1;
-    }
-    if (i < len && s[i] == '.') {
-        for (i++; i < len && s[i] >= '0' && s[i] <= '9'; i++, nd++) {
-            if (mant == 0 && s[i] == '0') {
-                e10--;
-                continue;
-            }
-            if (sig < 19)
-                mant = mant * 10 + (uint64_t)(s[i] - '0'), sig++, e10--;
-            else
-                inexact = 1;
-        }
-    }
-    int ok = nd > 0;
-    if (ok && i < len && (s[i] == 'e' || s[i] == 'E')) {
-        size_t ne = 0;
-        long x = 0;
-        int eneg = 0;
-        i++;
-        if (i < len && (s[i] == '+' || s[i] == '-'))
-            eneg = s[i++] == '-';
-        for (; i < len && s[i] >= '0' && s[i] <= '9'; i++, ne++)
-            if (x < 100000)
-                x = x * 10 + (s[i] - '0');
-        ok = ne > 0;
-        e10 += eneg ? -x : x;
-    }
-    if (!ok || i != len) {
-        size_t j = (s[0] == '+' || s[0] == '-') ? 1 : 0;
-        if (word_at(s + j, len - j, "nan") || word_at(s + j, len - j, "inf") ||
-            word_at(s + j, len - j, "infinity"))
-            return NUM_NANINF;
-        int comma = 0, other = 0;
-        for (size_t k = 0; k < len; k++) {
-            char c = s[k];
-            if (c == ',')
-                comma = 1;
-            else if (!((c >= '0' && c <= '9') || c == '.' || c == '+' || c == '-' || c == 'e' ||
-                       c == 'E' || c == ' '))
-                other = 1;
-        }
-        return comma && !other ? NUM_COMMA : NUM_TEXT;
-    }
-    /* Clinger's fast path: an integer below 2^53 times or over an exact power of ten
-     * is one correctly rounded operation, the same result strtod gives */
-    if (!inexact && mant <= (1ull << 53) && e10 >= -22 && e10 <= 22) {
-        double x = (double)mant;
-        x = e10 >= 0 ? x * p10[e10] : x / p10[-e10];
-        *v = neg ? -x : x;
-        return NUM_OK;
-    }
-#if LDBL_MANT_DIG == 64 && (defined(__x86_64__) || defined(__i386__))
-    /* The same with x87 extended precision, for the 16 to 19 digits that
-     * printed doubles carry: the digits (below 10^19 < 2^64) and 10^k for
-     * k <= 27 (5^27 < 2^63) are exact in its 64-bit significand, so the
-     * product or quotient is one correctly rounded extended operation.
-     * Rounding that to double gives the correctly rounded double unless the
-     * extended result lies exactly half-way between two doubles (its low 11
-     * significand bits 10000000000); then strtod decides. */
-    if (!inexact && e10 >= -27 && e10 <= 27) {
-        static const long double q10[28] = {
-            1e0L,  1e1L,  1e2L,  1e3L,  1e4L,  1e5L,  1e6L,  1e7L,  1e8L,  1e9L,
-            1e10L, 1e11L, 1e12L, 1e13L, 1e14L, 1e15L, 1e16L, 1e17L, 1e18L, 1e19L,
-            1e20L, 1e21L, 1e22L, 1e23L, 1e24L, 1e25L, 1e26L, 1e27L};
-        long double r = (long double)mant;
-        r = e10 >= 0 ? r * q10[e10] : r / q10[-e10];
-        uint64_t bits;
-        memcpy(&bits, &r, sizeof bits);   /* x87 layout: the significand comes first */
-        if ((bits & 0x7ff) != 0x400) {
-            double x = (double)r;
-            *v = neg ? -x : x;
-            return NUM_OK;
-        }
-    }
-#endif
-    char *end;
-    double x = strtod(s, &end);
-    if (end != s + len)
-        return NUM_TEXT;
-    if (isinf(x))
-        return NUM_RANGE;
-    *v = x; /* underflow to a subnormal or zero is accepted */
-    return NUM_OK;
-}
-
 /* ---- column choice ------------------------------------------------------ */
 
 static const char *const time_names[] = {"date", "time", "datetime", "timestamp", "period", "day",
@@ -336,28 +200,28 @@ static void value_cell(reader *R, const char *s, size_t len, long line)
     char sb[4 * SHOW_MAX + 8];
     long col = R->vcol + 1;
     const char *nm = R->hdr[R->vcol];
-    switch (parse_number(s, len, &R->cur_y)) {
-    case NUM_OK:
+    switch (sh_csv_number(s, len, &R->cur_y)) {
+    case SH_NUM_OK:
         R->cur_missing = 0;
         return;
-    case NUM_EMPTY:
+    case SH_NUM_EMPTY:
         R->cur_missing = 1;
         if (R->n_empty++ == 0)
             R->first_empty_line = line;
         return;
-    case NUM_COMMA:
+    case SH_NUM_COMMA:
         fail(R, HN_EPARSE, line, col,
              "column %ld '%s': '%s' is not a number: a decimal comma is not accepted; numbers "
              "use '.' as the decimal point (e.g. 1.5)",
              col, nm, show(s, len, sb, sizeof sb));
         return;
-    case NUM_NANINF:
+    case SH_NUM_NANINF:
         fail(R, HN_EPARSE, line, col,
              "column %ld '%s': '%s' is not accepted: values must be finite numbers; leave the "
              "cell empty to mark a missing value",
              col, nm, show(s, len, sb, sizeof sb));
         return;
-    case NUM_RANGE:
+    case SH_NUM_RANGE:
         fail(R, HN_EPARSE, line, col,
              "column %ld '%s': '%s' is beyond the range of a double (about 1.8e308)", col, nm,
              show(s, len, sb, sizeof sb));
@@ -377,7 +241,7 @@ static void time_cell(reader *R, const char *s, size_t len, long line)
     int kind;
     const char *t = s;
     size_t tl = len;
-    trim(&t, &tl);
+    sh_csv_trim(&t, &tl);
     if (tl == 0) {
         fail(R, HN_EPARSE, line, col, "column %ld '%s': the time cell is empty", col, nm);
         return;
@@ -455,10 +319,10 @@ static void end_header(reader *R)
     int numeric = 0;
     for (int j = 0; j < R->ncols; j++) {
         double v;
-        num_result r = parse_number(R->hdr[j], strlen(R->hdr[j]), &v);
-        if (r == NUM_OK)
+        sh_num_result r = sh_csv_number(R->hdr[j], strlen(R->hdr[j]), &v);
+        if (r == SH_NUM_OK)
             numeric++;
-        else if (r != NUM_EMPTY) {
+        else if (r != SH_NUM_EMPTY) {
             numeric = 0;
             break;
         }
@@ -500,7 +364,7 @@ static void choose_columns(reader *R)
                 /* a time-named column whose first cell is neither a time nor a number is
                  * still taken, so that its bad cell is reported rather than ignored */
                 if (sh_time_parse(c, strlen(c), pass == 0, &t, &kind, NULL, 0) == 0 ||
-                    (pass == 0 && parse_number(c, strlen(c), &v) > NUM_EMPTY)) {
+                    (pass == 0 && sh_csv_number(c, strlen(c), &v) > SH_NUM_EMPTY)) {
                     R->tcol = j;
                     R->allow_year = pass == 0;
                     break;
@@ -513,7 +377,7 @@ static void choose_columns(reader *R)
     }
     for (int j = 0; j < R->ncols; j++)
         if (j != R->tcol && !name_in(R->hdr[j], index_names) && !name_in(R->hdr[j], time_names) &&
-            parse_number(R->first[j], strlen(R->first[j]), &v) == NUM_OK) {
+            sh_csv_number(R->first[j], strlen(R->first[j]), &v) == SH_NUM_OK) {
             R->vcol = j;
             return;
         }
@@ -521,7 +385,7 @@ static void choose_columns(reader *R)
      * comma, NaN/Inf, out of range, empty), so that the cell itself is reported */
     for (int j = 0; j < R->ncols; j++)
         if (j != R->tcol && !name_in(R->hdr[j], index_names) && !name_in(R->hdr[j], time_names) &&
-            parse_number(R->first[j], strlen(R->first[j]), &v) != NUM_TEXT) {
+            sh_csv_number(R->first[j], strlen(R->first[j]), &v) != SH_NUM_TEXT) {
             R->vcol = j;
             return;
         }
@@ -569,7 +433,7 @@ static int push(reader *R, char ***arr, long **lines, int *cnt, int *cap, const 
         }
         *cap = nc;
     }
-    trim(&s, &len);
+    sh_csv_trim(&s, &len);
     char *c = copy_text(s, len);
     if (!c)
         return fail(R, HN_ENOMEM, 0, 0, "out of memory reading the header");

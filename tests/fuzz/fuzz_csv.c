@@ -2,7 +2,7 @@
  *
  * Not part of the Makefile.  Build and run from the top of the tree:
  *   clang -g -O1 -std=c11 -D_DEFAULT_SOURCE -fsanitize=fuzzer,address,undefined \
- *     -Ifit -Ishell tests/fuzz/fuzz_csv.c shell/sh_csv.c shell/sh_time.c \
+ *     -Ifit -Ishell tests/fuzz/fuzz_csv.c shell/sh_csv.c shell/sh_csv_num.c shell/sh_time.c \
  *     shell/sh_error.c -lcsv -lm -o build/fuzz_csv
  *   build/fuzz_csv -max_len=4096 tests/fuzz/corpus/csv
  * The first input byte picks the options (value column, time column, missing-value
