@@ -2,6 +2,7 @@
 #include "sh_csv.h"
 
 #include "hn_status.h"
+#include "sh_csv_fast.h"
 #include "sh_csv_num.h"
 
 #include <csv.h>
@@ -16,7 +17,9 @@
 #include <strings.h>
 #include <sys/stat.h>
 
-#define CHUNK (1u << 18)  /* bytes read per fread */
+#define CHUNK (1u << 18)      /* bytes read per fread, and where the delimiter is looked for */
+#define CHUNK_MAX (1u << 26)  /* ... up to this much of a regular file at once, so that its
+                                 plain rows are parsed on threads in few long stretches */
 #define SHOW_MAX 40       /* bytes of an offending cell quoted in a message */
 
 /* Reader state shared by the libcsv callbacks. */
@@ -50,12 +53,10 @@ typedef struct {
     int cur_missing;
     int64_t cur_t;
 
-    size_t n, cap;          /* rows stored */
-    double *y;              /* NaN marks an empty cell until the policy runs */
-    long *lines;
-    int64_t *st;
-    size_t n_empty;
-    long first_empty_line;
+    sh_csv_rows rows;       /* rows stored; NaN marks an empty cell until the policy runs */
+    int row_ended;          /* the last bytes fed ended a row: libcsv is between rows */
+    locale_t loc;           /* the C locale the numbers are read in */
+    sh_csv_fast fast;       /* plain rows read without libcsv */
 } reader;
 
 /* ---- small helpers ------------------------------------------------------ */
@@ -206,8 +207,8 @@ static void value_cell(reader *R, const char *s, size_t len, long line)
         return;
     case SH_NUM_EMPTY:
         R->cur_missing = 1;
-        if (R->n_empty++ == 0)
-            R->first_empty_line = line;
+        if (R->rows.n_empty++ == 0)
+            R->rows.first_empty = line;
         return;
     case SH_NUM_COMMA:
         fail(R, HN_EPARSE, line, col,
@@ -261,55 +262,40 @@ static void time_cell(reader *R, const char *s, size_t len, long line)
 
 static int grow(reader *R)
 {
-    size_t cap = R->cap ? 2 * R->cap : 4096;
-    double *y = realloc(R->y, cap * sizeof *y);
-    if (y)
-        R->y = y;
-    long *l = y ? realloc(R->lines, cap * sizeof *l) : NULL;
-    if (l)
-        R->lines = l;
-    int ok = y && l;
-    if (ok && R->tcol >= 0) {
-        int64_t *t = realloc(R->st, cap * sizeof *t);
-        if (t)
-            R->st = t;
-        ok = t != NULL;
-    }
-    if (!ok)
-        return fail(R, HN_ENOMEM, 0, 0, "out of memory after %zu rows", R->n);
-    R->cap = cap;
+    if (sh_csv_rows_grow(&R->rows, R->tcol >= 0) != 0)
+        return fail(R, HN_ENOMEM, 0, 0, "out of memory after %zu rows", R->rows.n);
     return HN_OK;
 }
 
 static void add_row(reader *R)
 {
     char a[64], b[64];
-    if (R->n >= R->max_rows) {
+    if (R->rows.n >= R->max_rows) {
         fail(R, HN_ELIMIT, R->row_line, 0,
              "more than %zu data rows (the row limit); raise the limit to load this file",
              R->max_rows);
         return;
     }
-    if (R->n == R->cap && grow(R) != HN_OK)
+    if (R->rows.n == R->rows.cap && grow(R) != HN_OK)
         return;
-    R->y[R->n] = R->cur_missing ? NAN : R->cur_y;
-    R->lines[R->n] = R->row_line;
+    R->rows.y[R->rows.n] = R->cur_missing ? NAN : R->cur_y;
+    R->rows.line[R->rows.n] = R->row_line;
     if (R->tcol >= 0) {
-        if (R->n > 0 && R->cur_t <= R->st[R->n - 1]) {
-            int dup = R->cur_t == R->st[R->n - 1];
+        if (R->rows.n > 0 && R->cur_t <= R->rows.st[R->rows.n - 1]) {
+            int dup = R->cur_t == R->rows.st[R->rows.n - 1];
             sh_time_format(R->cur_t, R->tkind, a, sizeof a);
-            sh_time_format(R->st[R->n - 1], R->tkind, b, sizeof b);
+            sh_time_format(R->rows.st[R->rows.n - 1], R->tkind, b, sizeof b);
             fail(R, HN_EPARSE, R->row_line, R->tcol + 1,
                  dup ? "column %d '%s': time %s repeats the time on line %ld (%s); times must "
                        "be unique"
                      : "column %d '%s': time %s comes before the time on line %ld (%s); rows "
                        "must be in increasing time order",
-                 R->tcol + 1, R->hdr[R->tcol], a, R->lines[R->n - 1], b);
+                 R->tcol + 1, R->hdr[R->tcol], a, R->rows.line[R->rows.n - 1], b);
             return;
         }
-        R->st[R->n] = R->cur_t;
+        R->rows.st[R->rows.n] = R->cur_t;
     }
-    R->n++;
+    R->rows.n++;
 }
 
 /* ---- header and the first data row --------------------------------------- */
@@ -478,6 +464,7 @@ static void on_row(int c, void *arg)
 {
     reader *R = arg;
     (void)c;
+    R->row_ended = 1;
     if (R->rc || R->done || R->field == 0)
         return;
     int nf = R->field;
@@ -553,6 +540,24 @@ static void feed(reader *R, struct csv_parser *p, const char *s, size_t len)
              SH_CSV_MAX_LINE, R->last_row_end);
 }
 
+/* Take the plain rows at the start of the LEN bytes at B (whole lines only) without the
+ * parser, as if it had read them; returns the bytes taken.  Called between rows once the
+ * columns are known; what it leaves (from the first line that is not plain) the parser reads. */
+static size_t take_plain(reader *R, const char *b, size_t len)
+{
+    sh_csv_shape sh = {R->delim, R->ncols, R->vcol, R->tcol, R->allow_year, R->tkind,
+                       R->max_rows, R->loc};
+    sh_csv_taken tk;
+    sh_csv_fast_take(b, len, R->line, &sh, &R->rows, &R->fast, &tk);
+    R->line += tk.lines;
+    if (tk.last_row > 0) {
+        /* what on_field and on_row would have left */
+        R->row_line = R->last_row_end = tk.last_row;
+        R->cb_line = tk.last_row + 1;
+    }
+    return tk.used;
+}
+
 /* Read the whole file through the parser.  Fills R; returns R->rc. */
 static int read_file(reader *R, char *delim_out, int *bom_out)
 {
@@ -560,11 +565,15 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
     FILE *f = fopen(R->path, "rb");
     if (!f)
         return fail(R, HN_EIO, 0, 0, "cannot open: %s", strerror(errno));
-    if (fstat(fileno(f), &sb) == 0 && S_ISDIR(sb.st_mode)) {
+    int have_st = fstat(fileno(f), &sb) == 0;
+    if (have_st && S_ISDIR(sb.st_mode)) {
         fclose(f);
         return fail(R, HN_EIO, 0, 0, "is a directory, not a CSV file");
     }
-    char *buf = malloc(CHUNK);
+    size_t cap = CHUNK;
+    if (have_st && !R->names_only && S_ISREG(sb.st_mode) && sb.st_size > (off_t)CHUNK)
+        cap = sb.st_size < (off_t)CHUNK_MAX ? (size_t)sb.st_size : CHUNK_MAX;
+    char *buf = malloc(cap);
     if (!buf) {
         fclose(f);
         return fail(R, HN_ENOMEM, 0, 0, "out of memory");
@@ -580,16 +589,17 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
     int cr_pending = 0;        /* last byte fed was a CR: CRLF or a lone CR? */
     int first = 1, any = 0;
     size_t got;
-    while (!R->rc && !R->done && (got = fread(buf, 1, CHUNK, f)) > 0) {
+    while (!R->rc && !R->done && (got = fread(buf, 1, cap, f)) > 0) {
         const char *b = buf;
         size_t len = got;
+        sh_csv_fast_reset(&R->fast);
         if (first) {
             first = 0;
             if (len >= 3 && memcmp(b, "\xEF\xBB\xBF", 3) == 0) {
                 b += 3, len -= 3;
                 *bom_out = 1;
             }
-            *delim_out = R->delim = detect_delimiter(b, len);
+            *delim_out = R->delim = detect_delimiter(b, (got < CHUNK ? got : CHUNK) - (size_t)(b - buf));
             csv_set_delim(&p, (unsigned char)*delim_out);
             if (*delim_out == '\t')
                 csv_set_space_func(&p, space_only);
@@ -616,6 +626,8 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
                      SH_CSV_MAX_LINE);
                 break;
             }
+            if (body > 0)
+                R->row_ended = 0;
             feed(R, &p, b + s, i - s + 1);
             cur_len = 0;
             if (c == '\n')
@@ -623,6 +635,10 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
             else
                 cr_pending = 1;
             s = i + 1;
+            if (c == '\n' && R->row_ended && R->state == 2 && !R->rc) {
+                s += take_plain(R, b + s, len - s);
+                i = s - 1;
+            }
         }
         if (!R->rc && !R->done && s < len) {
             if (cr_pending) {
@@ -630,6 +646,7 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
                 R->line++;
             }
             cur_len += (long)(len - s);
+            R->row_ended = 0;
             if (cur_len > SH_CSV_MAX_LINE)
                 fail(R, HN_ELIMIT, R->line, 0, "the line is longer than %ld bytes (the limit)",
                      SH_CSV_MAX_LINE);
@@ -666,18 +683,17 @@ static void reader_free(reader *R)
         free(R->first[j]);
     free(R->first);
     free(R->first_line);
-    free(R->y);
-    free(R->lines);
-    free(R->st);
+    sh_csv_rows_free(&R->rows);
+    sh_csv_fast_free(&R->fast);
 }
 
 /* ---- missing values ------------------------------------------------------ */
 
 static int apply_policy(reader *R, int policy)
 {
-    size_t n = R->n;
-    double *y = R->y;
-    if (R->n_empty == 0)
+    size_t n = R->rows.n;
+    double *y = R->rows.y;
+    if (R->rows.n_empty == 0)
         return HN_OK;
     long col = R->vcol + 1;
     const char *nm = R->hdr[R->vcol];
@@ -687,19 +703,19 @@ static int apply_policy(reader *R, int policy)
         for (size_t i = 0; i < n; i++)
             if (!isnan(y[i])) {
                 y[k] = y[i];
-                R->lines[k] = R->lines[i];
-                if (R->st)
-                    R->st[k] = R->st[i];
+                R->rows.line[k] = R->rows.line[i];
+                if (R->rows.st)
+                    R->rows.st[k] = R->rows.st[i];
                 k++;
             }
-        R->n = k;
+        R->rows.n = k;
         if (k == 0)
             return fail(R, HN_ESHORT, 0, col, "column %ld '%s': every value is empty", col, nm);
         return HN_OK;
     }
     case SH_MISSING_PREVIOUS:
         if (isnan(y[0]))
-            return fail(R, HN_EPARSE, R->lines[0], col,
+            return fail(R, HN_EPARSE, R->rows.line[0], col,
                         "column %ld '%s': the first value is empty, so there is no previous "
                         "value to repeat",
                         col, nm);
@@ -710,7 +726,7 @@ static int apply_policy(reader *R, int policy)
     case SH_MISSING_INTERPOLATE: {
         if (isnan(y[0]) || isnan(y[n - 1])) {
             size_t i = isnan(y[0]) ? 0 : n - 1;
-            return fail(R, HN_EPARSE, R->lines[i], col,
+            return fail(R, HN_EPARSE, R->rows.line[i], col,
                         "column %ld '%s': the %s value is empty; interpolation needs a value on "
                         "both sides",
                         col, nm, i == 0 ? "first" : "last");
@@ -720,10 +736,10 @@ static int apply_policy(reader *R, int policy)
             if (isnan(y[i]))
                 continue;
             if (i > a + 1) {
-                double xa = R->st ? (double)R->st[a] : (double)a;
-                double xb = R->st ? (double)R->st[i] : (double)i;
+                double xa = R->rows.st ? (double)R->rows.st[a] : (double)a;
+                double xb = R->rows.st ? (double)R->rows.st[i] : (double)i;
                 for (size_t j = a + 1; j < i; j++) {
-                    double x = R->st ? (double)R->st[j] : (double)j;
+                    double x = R->rows.st ? (double)R->rows.st[j] : (double)j;
                     y[j] = y[a] + (y[i] - y[a]) * (x - xa) / (xb - xa);
                 }
             }
@@ -732,10 +748,10 @@ static int apply_policy(reader *R, int policy)
         return HN_OK;
     }
     default:
-        return fail(R, HN_EPARSE, R->first_empty_line, col,
+        return fail(R, HN_EPARSE, R->rows.first_empty, col,
                     "column %ld '%s': %zu empty cell%s (the first on line %ld); choose a "
                     "missing-value policy (drop, previous or interpolate) to load them",
-                    col, nm, R->n_empty, R->n_empty == 1 ? "" : "s", R->first_empty_line);
+                    col, nm, R->rows.n_empty, R->rows.n_empty == 1 ? "" : "s", R->rows.first_empty);
     }
 }
 
@@ -822,6 +838,7 @@ int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_er
     /* numbers are read in the C locale whatever the program's locale is */
     locale_t c_loc = newlocale(LC_ALL_MASK, "C", (locale_t)0);
     locale_t old = c_loc ? uselocale(c_loc) : (locale_t)0;
+    R.loc = c_loc;
     read_file(&R, &d, &bom);
     if (c_loc) {
         uselocale(old);
@@ -829,7 +846,7 @@ int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_er
     }
     if (!R.rc && R.state < 2)
         fail(&R, HN_ESHORT, 0, 0, "the file has a header row but no data rows");
-    size_t n_rows = R.n;
+    size_t n_rows = R.rows.n;
     if (!R.rc)
         apply_policy(&R, policy);
     if (R.rc) {
@@ -848,27 +865,28 @@ int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_er
         return HN_ENOMEM;
     }
     out->column_index = R.vcol + 1;
-    out->n = R.n;
-    out->y = R.y;
-    out->line = R.lines;
+    out->n = R.rows.n;
+    out->y = R.rows.y;
+    out->line = R.rows.line;
     out->n_rows = n_rows;
     out->is_constant = 1;
-    for (size_t i = 1; i < R.n; i++)
-        if (R.y[i] != R.y[0]) {
+    for (size_t i = 1; i < R.rows.n; i++)
+        if (R.rows.y[i] != R.rows.y[0]) {
             out->is_constant = 0;
             break;
         }
     out->has_time = R.tcol >= 0;
     out->time_index = R.tcol + 1;
     out->time_kind = R.tcol >= 0 ? R.tkind : SH_TIME_NONE;
-    out->stamp = R.st;
-    out->n_missing = R.n_empty;
+    out->stamp = R.rows.st;
+    out->n_missing = R.rows.n_empty;
     out->missing_policy = policy;
     out->delimiter = d;
     out->had_bom = bom;
     out->ncols = R.ncols;
     out->headers = R.hdr;
-    R.y = NULL, R.lines = NULL, R.st = NULL, R.hdr = NULL, R.ncols = 0;
+    memset(&R.rows, 0, sizeof R.rows);
+    R.hdr = NULL, R.ncols = 0;
     reader_free(&R);
 
     sh_freq_info fi;
