@@ -39,6 +39,8 @@ static int reserve(sh_csv_rows *r, size_t need, int with_time)
 {
     if (need <= r->cap)
         return 0;
+    if (r->fixed)
+        return -1;
     size_t cap = r->cap ? 2 * r->cap : 4096;
     while (cap < need)
         cap *= 2;
@@ -75,14 +77,12 @@ void sh_csv_rows_free(sh_csv_rows *rows)
 
 void sh_csv_fast_reset(sh_csv_fast *f)
 {
-    f->npieces = f->next = 0;
     f->quote = f->quote_from = f->quote_end = NULL;
+    f->no_split = 0;
 }
 
 void sh_csv_fast_free(sh_csv_fast *f)
 {
-    for (int k = 0; k < SH_CSV_PIECES; k++)
-        sh_csv_rows_free(&f->piece[k].rows);
     sh_csv_fast_reset(f);
 }
 
@@ -205,37 +205,35 @@ static const char *line_start(const char *b, const char *q)
     return q;
 }
 
-/* Append a piece's rows (lines from OFF) to ROWS; 0, or -1 when they cannot follow (time
- * order, row limit, memory): then the general reader meets the same rows and says why. */
-static int join(sh_csv_rows *rows, const sh_csv_rows *side, long off, const sh_csv_shape *sh)
+#define PIECES 16 /* most pieces one long stretch is cut into */
+
+typedef struct {
+    const char *a, *z;  /* its whole lines */
+    long lines;         /* line ends in it */
+    size_t base;        /* where its rows are written: rows before it plus its lines */
+    sh_csv_rows rows;   /* a window into the rows at BASE */
+    part o;
+} piece;
+
+static long count_lines(const char *a, const char *z)
 {
-    int with_time = sh->tcol >= 0;
-    if (side->n == 0)
-        return 0;
-    if (rows->n + side->n > sh->max_rows ||
-        (with_time && rows->n > 0 && side->st[0] <= rows->st[rows->n - 1]) ||
-        reserve(rows, rows->n + side->n, with_time) != 0)
-        return -1;
-    memcpy(rows->y + rows->n, side->y, side->n * sizeof *side->y);
-    for (size_t i = 0; i < side->n; i++)
-        rows->line[rows->n + i] = side->line[i] + off;
-    if (with_time)
-        memcpy(rows->st + rows->n, side->st, side->n * sizeof *side->st);
-    if (side->n_empty) {
-        if (rows->n_empty == 0)
-            rows->first_empty = side->first_empty + off;
-        rows->n_empty += side->n_empty;
-    }
-    rows->n += side->n;
-    return 0;
+    long k = 0;
+    for (const char *p = a; (p = memchr(p, '\n', (size_t)(z - p))) != NULL; p++)
+        k++;
+    return k;
 }
 
-/* Cut [P, Z) into pieces at line starts and parse them all, on the team's threads. */
-static void parse_pieces(sh_csv_fast *f, const char *p, const char *z, int threads,
-                         const sh_csv_shape *sh)
+/* Cut [P, Z) (Z[-1] is '\n', P on line LINE) into pieces at line starts, count their lines,
+ * parse each into its own window of ROWS (a row per line at most), then join them in file
+ * order: a piece follows the one before if that one reached its end, its first time is
+ * after the last one kept and the row limit holds.  Adds what was taken to OUT; returns 1
+ * when all of [P, Z) was taken, 0 when it stopped (or could not start: OUT unchanged). */
+static int take_cut(const char *p, const char *z, long line, const sh_csv_shape *sh,
+                    sh_csv_rows *rows, int threads, sh_csv_taken *out)
 {
+    piece pc[PIECES];
     size_t span = (size_t)(z - p), piece_min = split_min / 2 ? split_min / 2 : 1;
-    int np = span / piece_min < SH_CSV_PIECES ? (int)(span / piece_min) : SH_CSV_PIECES;
+    int np = span / piece_min < PIECES ? (int)(span / piece_min) : PIECES;
     if (np < 2)
         np = 2;
     int k = 0;
@@ -243,35 +241,73 @@ static void parse_pieces(sh_csv_fast *f, const char *p, const char *z, int threa
         const char *c = k == np - 1 ? z : p + span / (size_t)np * (size_t)(k + 1);
         if (c <= a)
             c = a;
-        if (c < z) {
-            c = memchr(c, '\n', (size_t)(z - c)); /* Z[-1] is '\n' */
-            c++;
-        }
-        f->piece[k].a = a;
-        f->piece[k].z = c;
+        if (c < z)
+            c = (const char *)memchr(c, '\n', (size_t)(z - c)) + 1; /* Z[-1] is '\n' */
+        pc[k].a = a;
+        pc[k].z = c;
         a = c;
     }
-    f->npieces = k;
-    f->next = 0;
     if (k < 2)
         threads = 1; /* one long line: no team for it */
 #pragma omp parallel for num_threads(threads) schedule(dynamic, 1)
+    for (int j = 0; j < k; j++)
+        pc[j].lines = count_lines(pc[j].a, pc[j].z);
+    size_t total = 0;
     for (int j = 0; j < k; j++) {
-        sh_csv_piece *pc = &f->piece[j];
-        part o;
+        pc[j].base = rows->n + total;
+        total += (size_t)pc[j].lines;
+    }
+    int with_time = sh->tcol >= 0;
+    if (reserve(rows, rows->n + total, with_time) != 0)
+        return 0;
+    long before = 0;
+    for (int j = 0; j < k; j++) {
+        sh_csv_rows *w = &pc[j].rows;
+        memset(w, 0, sizeof *w);
+        w->y = rows->y + pc[j].base;
+        w->line = rows->line + pc[j].base;
+        w->st = with_time ? rows->st + pc[j].base : NULL;
+        w->cap = (size_t)pc[j].lines;
+        w->fixed = 1;
+        pc[j].o.lines = before; /* the line of its first byte, until it is parsed */
+        before += pc[j].lines;
+    }
+#pragma omp parallel for num_threads(threads) schedule(dynamic, 1)
+    for (int j = 0; j < k; j++) {
         /* the locale is per thread; the caller's is the C locale */
         int helper = omp_get_thread_num() != 0 && sh->loc;
         locale_t old = helper ? uselocale(sh->loc) : (locale_t)0;
-        pc->rows.n = pc->rows.n_empty = 0;
-        pc->rows.first_empty = 0;
-        scan(pc->a, pc->z, 0, sh, &pc->rows, &o);
+        scan(pc[j].a, pc[j].z, line + pc[j].o.lines, sh, &pc[j].rows, &pc[j].o);
         if (helper)
             uselocale(old);
-        pc->used = o.used;
-        pc->lines = o.lines;
-        pc->last_row = o.last_row;
-        pc->stopped = o.stopped;
     }
+    for (int j = 0; j < k; j++) {
+        const sh_csv_rows *w = &pc[j].rows;
+        if (w->n > 0) {
+            if (rows->n + w->n > sh->max_rows ||
+                (with_time && rows->n > 0 && w->st[0] <= rows->st[rows->n - 1]))
+                return 0; /* the general reader meets the same row and says why */
+            if (pc[j].base != rows->n) {
+                /* blank lines before: close the gap */
+                memmove(rows->y + rows->n, w->y, w->n * sizeof *w->y);
+                memmove(rows->line + rows->n, w->line, w->n * sizeof *w->line);
+                if (with_time)
+                    memmove(rows->st + rows->n, w->st, w->n * sizeof *w->st);
+            }
+            if (w->n_empty) {
+                if (rows->n_empty == 0)
+                    rows->first_empty = w->first_empty;
+                rows->n_empty += w->n_empty;
+            }
+            rows->n += w->n;
+            out->last_row = pc[j].o.last_row;
+        }
+        out->used += pc[j].o.used;
+        out->lines += pc[j].o.lines;
+        if (pc[j].o.stopped)
+            return 0;
+    }
+    return 1;
 }
 
 void sh_csv_fast_take(const char *b, size_t len, long line0, const sh_csv_shape *shape,
@@ -281,54 +317,24 @@ void sh_csv_fast_take(const char *b, size_t len, long line0, const sh_csv_shape 
     if (!fast_enabled || len == 0)
         return;
     size_t n0 = rows->n;
-    const char *end = b + len, *z = end, *p = b;
+    const char *end = b + len, *z = end;
     while (z > b && z[-1] != '\n')
         z--;
     const char *q = next_quote(f, b, end);
     if (q && q < z)
         z = line_start(b, q);
     int threads = omp_in_parallel() ? 1 : team_size ? team_size : omp_get_max_threads();
-    int pieces = threads > 1 || team_size > 0;
-    long line = line0;
-    part o;
-    while (p < z) {
-        /* pieces the general reader has read into are of no use */
-        while (f->next < f->npieces && f->piece[f->next].a < p)
-            f->next++;
-        if (f->next == f->npieces) {
-            if (pieces && (size_t)(z - p) >= split_min) {
-                parse_pieces(f, p, z, threads, shape);
-                continue;
-            }
-            scan(p, z, line, shape, rows, &o);
-            p += o.used, line += o.lines;
-            if (o.last_row)
-                out->last_row = o.last_row;
-            break;
-        }
-        sh_csv_piece *pc = &f->piece[f->next];
-        if (pc->a > p) {
-            /* up to the next piece: the general reader left a line before it */
-            const char *stop = pc->a < z ? pc->a : z;
-            scan(p, stop, line, shape, rows, &o);
-            p += o.used, line += o.lines;
-            if (o.last_row)
-                out->last_row = o.last_row;
-            if (o.stopped || p == z)
-                break;
-        }
-        if (pc->z > z || join(rows, &pc->rows, line, shape) != 0)
-            break;
-        f->next++;
-        p += pc->used;
-        if (pc->rows.n)
-            out->last_row = pc->last_row + line;
-        line += pc->lines;
-        if (pc->stopped)
-            break;
+    if (z > b && (threads > 1 || team_size > 0) && !f->no_split &&
+        (size_t)(z - b) >= split_min) {
+        if (!take_cut(b, z, line0, shape, rows, threads, out))
+            f->no_split = 1; /* what it parsed past the stop is lost: not again here */
+    } else if (z > b) {
+        part o;
+        scan(b, z, line0, shape, rows, &o);
+        out->used = o.used;
+        out->lines = o.lines;
+        out->last_row = o.last_row;
     }
-    out->used = (size_t)(p - b);
-    out->lines = line - line0;
     unsigned long long k = rows->n - n0;
 #pragma omp atomic
     rows_taken += k;

@@ -13,6 +13,7 @@ typedef struct {
     long *line;         /* physical line of each row */
     int64_t *st;        /* time stamps; NULL without a time column */
     size_t n, cap;
+    int fixed;          /* a window into other rows' arrays: never reallocated */
     size_t n_empty;     /* empty value cells among the rows */
     long first_empty;   /* line of the first of them */
 } sh_csv_rows;
@@ -34,23 +35,11 @@ typedef struct {
     locale_t loc;       /* the C locale, for strtod on a helper thread; 0 = leave it */
 } sh_csv_shape;
 
-#define SH_CSV_PIECES 16   /* most pieces one long stretch is cut into */
-
-/* A piece of a long stretch, parsed ahead on some thread. */
-typedef struct {
-    const char *a, *z;  /* its whole lines */
-    sh_csv_rows rows;   /* lines counted from 0 at A */
-    size_t used;        /* bytes of rows taken from A */
-    long lines, last_row;
-    int stopped;        /* it stopped before Z */
-} sh_csv_piece;
-
 /* State kept between calls on one buffer. */
 typedef struct {
-    sh_csv_piece piece[SH_CSV_PIECES];
-    int npieces, next;  /* pieces parsed ahead; the first not yet joined */
     const char *quote;  /* first '"' in [quote_from, quote_end), NULL if none */
     const char *quote_from, *quote_end;
+    int no_split;       /* a cut stretch stopped early in this buffer: no more cuts in it */
 } sh_csv_fast;
 
 /* Forget what was learnt about the buffer (call when its contents change). */
@@ -73,9 +62,9 @@ typedef struct {
  * kind or is not after the one before, or one row beyond the limit.  Blank lines are
  * skipped as libcsv skips them.  It never reports anything: the caller reads what is
  * left with the general reader, whose messages and policies thereby stay the only ones.
- * Long stretches are cut into pieces parsed on the OpenMP threads (none inside a parallel
- * region) and joined in file order; pieces beyond a line left to the general reader are
- * kept in F for the next call on the same buffer. */
+ * Long stretches are cut into pieces at line starts, counted and parsed on the OpenMP
+ * threads (none inside a parallel region) straight into ROWS, and joined in file order;
+ * after a cut stretch stopped early, F keeps the rest of the buffer uncut. */
 void sh_csv_fast_take(const char *b, size_t len, long line0, const sh_csv_shape *shape,
                       sh_csv_rows *rows, sh_csv_fast *f, sh_csv_taken *out);
 
