@@ -1,5 +1,5 @@
-/* sh_csv_fast.c - plain data rows split in place and parsed without copies, two halves on two
- * threads when the stretch is long. */
+/* sh_csv_fast.c - plain data rows split in place and parsed without copies, long stretches in
+ * pieces on the OpenMP threads. */
 #include "sh_csv_fast.h"
 
 #include "sh_csv_num.h"
