@@ -2,10 +2,11 @@
 #include "sh_csv.h"
 
 #include "hn_status.h"
+#include "sh_csv_fast.h"
+#include "sh_csv_num.h"
 
 #include <csv.h>
 #include <errno.h>
-#include <float.h>
 #include <locale.h>
 #include <math.h>
 #include <stdarg.h>
@@ -16,7 +17,9 @@
 #include <strings.h>
 #include <sys/stat.h>
 
-#define CHUNK (1u << 18)  /* bytes read per fread */
+#define CHUNK (1u << 18)      /* bytes read per fread, and where the delimiter is looked for */
+#define CHUNK_MAX (1u << 26)  /* ... up to this much of a regular file at once, so that its
+                                 plain rows are parsed on threads in few long stretches */
 #define SHOW_MAX 40       /* bytes of an offending cell quoted in a message */
 
 /* Reader state shared by the libcsv callbacks. */
@@ -50,12 +53,10 @@ typedef struct {
     int cur_missing;
     int64_t cur_t;
 
-    size_t n, cap;          /* rows stored */
-    double *y;              /* NaN marks an empty cell until the policy runs */
-    long *lines;
-    int64_t *st;
-    size_t n_empty;
-    long first_empty_line;
+    sh_csv_rows rows;       /* rows stored; NaN marks an empty cell until the policy runs */
+    int row_ended;          /* the last bytes fed ended a row: libcsv is between rows */
+    locale_t loc;           /* the C locale the numbers are read in */
+    sh_csv_fast fast;       /* plain rows read without libcsv */
 } reader;
 
 /* ---- small helpers ------------------------------------------------------ */
@@ -117,142 +118,6 @@ static int fail(reader *R, int rc, long line, long col, const char *fmt, ...)
         sh_error_set(R->err, R->path, line, col, "%s", text);
     }
     return rc;
-}
-
-static int is_blank(char c)
-{
-    return c == ' ' || c == '\t';
-}
-
-static void trim(const char **s, size_t *len)
-{
-    const char *p = *s, *e = *s + *len;
-    while (p < e && is_blank(*p))
-        p++;
-    while (e > p && is_blank(e[-1]))
-        e--;
-    *s = p;
-    *len = (size_t)(e - p);
-}
-
-/* ---- numbers ------------------------------------------------------------ */
-
-typedef enum { NUM_OK, NUM_EMPTY, NUM_TEXT, NUM_COMMA, NUM_NANINF, NUM_RANGE } num_result;
-
-static int word_at(const char *s, size_t len, const char *w)
-{
-    return strlen(w) == len && strncasecmp(s, w, len) == 0;
-}
-
-/* Strict C-locale decimal number: [sign] digits [. digits] [e [sign] digits]
- * (digits on at least one side of the point).  S[LEN] must not be a digit
- * (libcsv ends every field with NUL). */
-static num_result parse_number(const char *s, size_t len, double *v)
-{
-    /* exact powers of ten (10^22 is the largest that a double holds exactly) */
-    static const double p10[23] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                                   1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
-                                   1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
-    trim(&s, &len);
-    if (len == 0)
-        return NUM_EMPTY;
-    size_t i = 0, nd = 0;
-    uint64_t mant = 0;   /* significant digits, while they fit */
-    int sig = 0, inexact = 0;
-    long e10 = 0;
-    int neg = s[0] == '-';
-    if (s[i] == '+' || s[i] == '-')
-        i++;
-    for (; i < len && s[i] >= '0' && s[i] <= '9'; i++, nd++) {
-        if (mant == 0 && s[i] == '0')
-            continue;
-        if (sig < 19)
-            mant = mant * 10 + (uint64_t)(s[i] - '0'), sig++;
-        else
-            inexact = 1;
-    }
-    if (i < len && s[i] == '.') {
-        for (i++; i < len && s[i] >= '0' && s[i] <= '9'; i++, nd++) {
-            if (mant == 0 && s[i] == '0') {
-                e10--;
-                continue;
-            }
-            if (sig < 19)
-                mant = mant * 10 + (uint64_t)(s[i] - '0'), sig++, e10--;
-            else
-                inexact = 1;
-        }
-    }
-    int ok = nd > 0;
-    if (ok && i < len && (s[i] == 'e' || s[i] == 'E')) {
-        size_t ne = 0;
-        long x = 0;
-        int eneg = 0;
-        i++;
-        if (i < len && (s[i] == '+' || s[i] == '-'))
-            eneg = s[i++] == '-';
-        for (; i < len && s[i] >= '0' && s[i] <= '9'; i++, ne++)
-            if (x < 100000)
-                x = x * 10 + (s[i] - '0');
-        ok = ne > 0;
-        e10 += eneg ? -x : x;
-    }
-    if (!ok || i != len) {
-        size_t j = (s[0] == '+' || s[0] == '-') ? 1 : 0;
-        if (word_at(s + j, len - j, "nan") || word_at(s + j, len - j, "inf") ||
-            word_at(s + j, len - j, "infinity"))
-            return NUM_NANINF;
-        int comma = 0, other = 0;
-        for (size_t k = 0; k < len; k++) {
-            char c = s[k];
-            if (c == ',')
-                comma = 1;
-            else if (!((c >= '0' && c <= '9') || c == '.' || c == '+' || c == '-' || c == 'e' ||
-                       c == 'E' || c == ' '))
-                other = 1;
-        }
-        return comma && !other ? NUM_COMMA : NUM_TEXT;
-    }
-    /* Clinger's fast path: an integer below 2^53 times or over an exact power of ten
-     * is one correctly rounded operation, the same result strtod gives */
-    if (!inexact && mant <= (1ull << 53) && e10 >= -22 && e10 <= 22) {
-        double x = (double)mant;
-        x = e10 >= 0 ? x * p10[e10] : x / p10[-e10];
-        *v = neg ? -x : x;
-        return NUM_OK;
-    }
-#if LDBL_MANT_DIG == 64 && (defined(__x86_64__) || defined(__i386__))
-    /* The same with x87 extended precision, for the 16 to 19 digits that
-     * printed doubles carry: the digits (below 10^19 < 2^64) and 10^k for
-     * k <= 27 (5^27 < 2^63) are exact in its 64-bit significand, so the
-     * product or quotient is one correctly rounded extended operation.
-     * Rounding that to double gives the correctly rounded double unless the
-     * extended result lies exactly half-way between two doubles (its low 11
-     * significand bits 10000000000); then strtod decides. */
-    if (!inexact && e10 >= -27 && e10 <= 27) {
-        static const long double q10[28] = {
-            1e0L,  1e1L,  1e2L,  1e3L,  1e4L,  1e5L,  1e6L,  1e7L,  1e8L,  1e9L,
-            1e10L, 1e11L, 1e12L, 1e13L, 1e14L, 1e15L, 1e16L, 1e17L, 1e18L, 1e19L,
-            1e20L, 1e21L, 1e22L, 1e23L, 1e24L, 1e25L, 1e26L, 1e27L};
-        long double r = (long double)mant;
-        r = e10 >= 0 ? r * q10[e10] : r / q10[-e10];
-        uint64_t bits;
-        memcpy(&bits, &r, sizeof bits);   /* x87 layout: the significand comes first */
-        if ((bits & 0x7ff) != 0x400) {
-            double x = (double)r;
-            *v = neg ? -x : x;
-            return NUM_OK;
-        }
-    }
-#endif
-    char *end;
-    double x = strtod(s, &end);
-    if (end != s + len)
-        return NUM_TEXT;
-    if (isinf(x))
-        return NUM_RANGE;
-    *v = x; /* underflow to a subnormal or zero is accepted */
-    return NUM_OK;
 }
 
 /* ---- column choice ------------------------------------------------------ */
@@ -336,28 +201,28 @@ static void value_cell(reader *R, const char *s, size_t len, long line)
     char sb[4 * SHOW_MAX + 8];
     long col = R->vcol + 1;
     const char *nm = R->hdr[R->vcol];
-    switch (parse_number(s, len, &R->cur_y)) {
-    case NUM_OK:
+    switch (sh_csv_number(s, len, &R->cur_y)) {
+    case SH_NUM_OK:
         R->cur_missing = 0;
         return;
-    case NUM_EMPTY:
+    case SH_NUM_EMPTY:
         R->cur_missing = 1;
-        if (R->n_empty++ == 0)
-            R->first_empty_line = line;
+        if (R->rows.n_empty++ == 0)
+            R->rows.first_empty = line;
         return;
-    case NUM_COMMA:
+    case SH_NUM_COMMA:
         fail(R, HN_EPARSE, line, col,
              "column %ld '%s': '%s' is not a number: a decimal comma is not accepted; numbers "
              "use '.' as the decimal point (e.g. 1.5)",
              col, nm, show(s, len, sb, sizeof sb));
         return;
-    case NUM_NANINF:
+    case SH_NUM_NANINF:
         fail(R, HN_EPARSE, line, col,
              "column %ld '%s': '%s' is not accepted: values must be finite numbers; leave the "
              "cell empty to mark a missing value",
              col, nm, show(s, len, sb, sizeof sb));
         return;
-    case NUM_RANGE:
+    case SH_NUM_RANGE:
         fail(R, HN_EPARSE, line, col,
              "column %ld '%s': '%s' is beyond the range of a double (about 1.8e308)", col, nm,
              show(s, len, sb, sizeof sb));
@@ -377,7 +242,7 @@ static void time_cell(reader *R, const char *s, size_t len, long line)
     int kind;
     const char *t = s;
     size_t tl = len;
-    trim(&t, &tl);
+    sh_csv_trim(&t, &tl);
     if (tl == 0) {
         fail(R, HN_EPARSE, line, col, "column %ld '%s': the time cell is empty", col, nm);
         return;
@@ -397,55 +262,40 @@ static void time_cell(reader *R, const char *s, size_t len, long line)
 
 static int grow(reader *R)
 {
-    size_t cap = R->cap ? 2 * R->cap : 4096;
-    double *y = realloc(R->y, cap * sizeof *y);
-    if (y)
-        R->y = y;
-    long *l = y ? realloc(R->lines, cap * sizeof *l) : NULL;
-    if (l)
-        R->lines = l;
-    int ok = y && l;
-    if (ok && R->tcol >= 0) {
-        int64_t *t = realloc(R->st, cap * sizeof *t);
-        if (t)
-            R->st = t;
-        ok = t != NULL;
-    }
-    if (!ok)
-        return fail(R, HN_ENOMEM, 0, 0, "out of memory after %zu rows", R->n);
-    R->cap = cap;
+    if (sh_csv_rows_grow(&R->rows, R->tcol >= 0) != 0)
+        return fail(R, HN_ENOMEM, 0, 0, "out of memory after %zu rows", R->rows.n);
     return HN_OK;
 }
 
 static void add_row(reader *R)
 {
     char a[64], b[64];
-    if (R->n >= R->max_rows) {
+    if (R->rows.n >= R->max_rows) {
         fail(R, HN_ELIMIT, R->row_line, 0,
              "more than %zu data rows (the row limit); raise the limit to load this file",
              R->max_rows);
         return;
     }
-    if (R->n == R->cap && grow(R) != HN_OK)
+    if (R->rows.n == R->rows.cap && grow(R) != HN_OK)
         return;
-    R->y[R->n] = R->cur_missing ? NAN : R->cur_y;
-    R->lines[R->n] = R->row_line;
+    R->rows.y[R->rows.n] = R->cur_missing ? NAN : R->cur_y;
+    R->rows.line[R->rows.n] = R->row_line;
     if (R->tcol >= 0) {
-        if (R->n > 0 && R->cur_t <= R->st[R->n - 1]) {
-            int dup = R->cur_t == R->st[R->n - 1];
+        if (R->rows.n > 0 && R->cur_t <= R->rows.st[R->rows.n - 1]) {
+            int dup = R->cur_t == R->rows.st[R->rows.n - 1];
             sh_time_format(R->cur_t, R->tkind, a, sizeof a);
-            sh_time_format(R->st[R->n - 1], R->tkind, b, sizeof b);
+            sh_time_format(R->rows.st[R->rows.n - 1], R->tkind, b, sizeof b);
             fail(R, HN_EPARSE, R->row_line, R->tcol + 1,
                  dup ? "column %d '%s': time %s repeats the time on line %ld (%s); times must "
                        "be unique"
                      : "column %d '%s': time %s comes before the time on line %ld (%s); rows "
                        "must be in increasing time order",
-                 R->tcol + 1, R->hdr[R->tcol], a, R->lines[R->n - 1], b);
+                 R->tcol + 1, R->hdr[R->tcol], a, R->rows.line[R->rows.n - 1], b);
             return;
         }
-        R->st[R->n] = R->cur_t;
+        R->rows.st[R->rows.n] = R->cur_t;
     }
-    R->n++;
+    R->rows.n++;
 }
 
 /* ---- header and the first data row --------------------------------------- */
@@ -455,10 +305,10 @@ static void end_header(reader *R)
     int numeric = 0;
     for (int j = 0; j < R->ncols; j++) {
         double v;
-        num_result r = parse_number(R->hdr[j], strlen(R->hdr[j]), &v);
-        if (r == NUM_OK)
+        sh_num_result r = sh_csv_number(R->hdr[j], strlen(R->hdr[j]), &v);
+        if (r == SH_NUM_OK)
             numeric++;
-        else if (r != NUM_EMPTY) {
+        else if (r != SH_NUM_EMPTY) {
             numeric = 0;
             break;
         }
@@ -500,7 +350,7 @@ static void choose_columns(reader *R)
                 /* a time-named column whose first cell is neither a time nor a number is
                  * still taken, so that its bad cell is reported rather than ignored */
                 if (sh_time_parse(c, strlen(c), pass == 0, &t, &kind, NULL, 0) == 0 ||
-                    (pass == 0 && parse_number(c, strlen(c), &v) > NUM_EMPTY)) {
+                    (pass == 0 && sh_csv_number(c, strlen(c), &v) > SH_NUM_EMPTY)) {
                     R->tcol = j;
                     R->allow_year = pass == 0;
                     break;
@@ -513,7 +363,7 @@ static void choose_columns(reader *R)
     }
     for (int j = 0; j < R->ncols; j++)
         if (j != R->tcol && !name_in(R->hdr[j], index_names) && !name_in(R->hdr[j], time_names) &&
-            parse_number(R->first[j], strlen(R->first[j]), &v) == NUM_OK) {
+            sh_csv_number(R->first[j], strlen(R->first[j]), &v) == SH_NUM_OK) {
             R->vcol = j;
             return;
         }
@@ -521,7 +371,7 @@ static void choose_columns(reader *R)
      * comma, NaN/Inf, out of range, empty), so that the cell itself is reported */
     for (int j = 0; j < R->ncols; j++)
         if (j != R->tcol && !name_in(R->hdr[j], index_names) && !name_in(R->hdr[j], time_names) &&
-            parse_number(R->first[j], strlen(R->first[j]), &v) != NUM_TEXT) {
+            sh_csv_number(R->first[j], strlen(R->first[j]), &v) != SH_NUM_TEXT) {
             R->vcol = j;
             return;
         }
@@ -569,7 +419,7 @@ static int push(reader *R, char ***arr, long **lines, int *cnt, int *cap, const 
         }
         *cap = nc;
     }
-    trim(&s, &len);
+    sh_csv_trim(&s, &len);
     char *c = copy_text(s, len);
     if (!c)
         return fail(R, HN_ENOMEM, 0, 0, "out of memory reading the header");
@@ -614,6 +464,7 @@ static void on_row(int c, void *arg)
 {
     reader *R = arg;
     (void)c;
+    R->row_ended = 1;
     if (R->rc || R->done || R->field == 0)
         return;
     int nf = R->field;
@@ -689,6 +540,24 @@ static void feed(reader *R, struct csv_parser *p, const char *s, size_t len)
              SH_CSV_MAX_LINE, R->last_row_end);
 }
 
+/* Take the plain rows at the start of the LEN bytes at B (whole lines only) without the
+ * parser, as if it had read them; returns the bytes taken.  Called between rows once the
+ * columns are known; what it leaves (from the first line that is not plain) the parser reads. */
+static size_t take_plain(reader *R, const char *b, size_t len)
+{
+    sh_csv_shape sh = {R->delim, R->ncols, R->vcol, R->tcol, R->allow_year, R->tkind,
+                       R->max_rows, R->loc};
+    sh_csv_taken tk;
+    sh_csv_fast_take(b, len, R->line, &sh, &R->rows, &R->fast, &tk);
+    R->line += tk.lines;
+    if (tk.last_row > 0) {
+        /* what on_field and on_row would have left */
+        R->row_line = R->last_row_end = tk.last_row;
+        R->cb_line = tk.last_row + 1;
+    }
+    return tk.used;
+}
+
 /* Read the whole file through the parser.  Fills R; returns R->rc. */
 static int read_file(reader *R, char *delim_out, int *bom_out)
 {
@@ -696,11 +565,15 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
     FILE *f = fopen(R->path, "rb");
     if (!f)
         return fail(R, HN_EIO, 0, 0, "cannot open: %s", strerror(errno));
-    if (fstat(fileno(f), &sb) == 0 && S_ISDIR(sb.st_mode)) {
+    int have_st = fstat(fileno(f), &sb) == 0;
+    if (have_st && S_ISDIR(sb.st_mode)) {
         fclose(f);
         return fail(R, HN_EIO, 0, 0, "is a directory, not a CSV file");
     }
-    char *buf = malloc(CHUNK);
+    size_t cap = CHUNK;
+    if (have_st && !R->names_only && S_ISREG(sb.st_mode) && sb.st_size > (off_t)CHUNK)
+        cap = sb.st_size < (off_t)CHUNK_MAX ? (size_t)sb.st_size : CHUNK_MAX;
+    char *buf = malloc(cap);
     if (!buf) {
         fclose(f);
         return fail(R, HN_ENOMEM, 0, 0, "out of memory");
@@ -716,16 +589,17 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
     int cr_pending = 0;        /* last byte fed was a CR: CRLF or a lone CR? */
     int first = 1, any = 0;
     size_t got;
-    while (!R->rc && !R->done && (got = fread(buf, 1, CHUNK, f)) > 0) {
+    while (!R->rc && !R->done && (got = fread(buf, 1, cap, f)) > 0) {
         const char *b = buf;
         size_t len = got;
+        sh_csv_fast_reset(&R->fast);
         if (first) {
             first = 0;
             if (len >= 3 && memcmp(b, "\xEF\xBB\xBF", 3) == 0) {
                 b += 3, len -= 3;
                 *bom_out = 1;
             }
-            *delim_out = R->delim = detect_delimiter(b, len);
+            *delim_out = R->delim = detect_delimiter(b, (got < CHUNK ? got : CHUNK) - (size_t)(b - buf));
             csv_set_delim(&p, (unsigned char)*delim_out);
             if (*delim_out == '\t')
                 csv_set_space_func(&p, space_only);
@@ -752,6 +626,8 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
                      SH_CSV_MAX_LINE);
                 break;
             }
+            if (body > 0)
+                R->row_ended = 0;
             feed(R, &p, b + s, i - s + 1);
             cur_len = 0;
             if (c == '\n')
@@ -759,6 +635,10 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
             else
                 cr_pending = 1;
             s = i + 1;
+            if (c == '\n' && R->row_ended && R->state == 2 && !R->rc) {
+                s += take_plain(R, b + s, len - s);
+                i = s - 1;
+            }
         }
         if (!R->rc && !R->done && s < len) {
             if (cr_pending) {
@@ -766,6 +646,7 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
                 R->line++;
             }
             cur_len += (long)(len - s);
+            R->row_ended = 0;
             if (cur_len > SH_CSV_MAX_LINE)
                 fail(R, HN_ELIMIT, R->line, 0, "the line is longer than %ld bytes (the limit)",
                      SH_CSV_MAX_LINE);
@@ -802,18 +683,17 @@ static void reader_free(reader *R)
         free(R->first[j]);
     free(R->first);
     free(R->first_line);
-    free(R->y);
-    free(R->lines);
-    free(R->st);
+    sh_csv_rows_free(&R->rows);
+    sh_csv_fast_free(&R->fast);
 }
 
 /* ---- missing values ------------------------------------------------------ */
 
 static int apply_policy(reader *R, int policy)
 {
-    size_t n = R->n;
-    double *y = R->y;
-    if (R->n_empty == 0)
+    size_t n = R->rows.n;
+    double *y = R->rows.y;
+    if (R->rows.n_empty == 0)
         return HN_OK;
     long col = R->vcol + 1;
     const char *nm = R->hdr[R->vcol];
@@ -823,19 +703,19 @@ static int apply_policy(reader *R, int policy)
         for (size_t i = 0; i < n; i++)
             if (!isnan(y[i])) {
                 y[k] = y[i];
-                R->lines[k] = R->lines[i];
-                if (R->st)
-                    R->st[k] = R->st[i];
+                R->rows.line[k] = R->rows.line[i];
+                if (R->rows.st)
+                    R->rows.st[k] = R->rows.st[i];
                 k++;
             }
-        R->n = k;
+        R->rows.n = k;
         if (k == 0)
             return fail(R, HN_ESHORT, 0, col, "column %ld '%s': every value is empty", col, nm);
         return HN_OK;
     }
     case SH_MISSING_PREVIOUS:
         if (isnan(y[0]))
-            return fail(R, HN_EPARSE, R->lines[0], col,
+            return fail(R, HN_EPARSE, R->rows.line[0], col,
                         "column %ld '%s': the first value is empty, so there is no previous "
                         "value to repeat",
                         col, nm);
@@ -846,7 +726,7 @@ static int apply_policy(reader *R, int policy)
     case SH_MISSING_INTERPOLATE: {
         if (isnan(y[0]) || isnan(y[n - 1])) {
             size_t i = isnan(y[0]) ? 0 : n - 1;
-            return fail(R, HN_EPARSE, R->lines[i], col,
+            return fail(R, HN_EPARSE, R->rows.line[i], col,
                         "column %ld '%s': the %s value is empty; interpolation needs a value on "
                         "both sides",
                         col, nm, i == 0 ? "first" : "last");
@@ -856,10 +736,10 @@ static int apply_policy(reader *R, int policy)
             if (isnan(y[i]))
                 continue;
             if (i > a + 1) {
-                double xa = R->st ? (double)R->st[a] : (double)a;
-                double xb = R->st ? (double)R->st[i] : (double)i;
+                double xa = R->rows.st ? (double)R->rows.st[a] : (double)a;
+                double xb = R->rows.st ? (double)R->rows.st[i] : (double)i;
                 for (size_t j = a + 1; j < i; j++) {
-                    double x = R->st ? (double)R->st[j] : (double)j;
+                    double x = R->rows.st ? (double)R->rows.st[j] : (double)j;
                     y[j] = y[a] + (y[i] - y[a]) * (x - xa) / (xb - xa);
                 }
             }
@@ -868,10 +748,10 @@ static int apply_policy(reader *R, int policy)
         return HN_OK;
     }
     default:
-        return fail(R, HN_EPARSE, R->first_empty_line, col,
+        return fail(R, HN_EPARSE, R->rows.first_empty, col,
                     "column %ld '%s': %zu empty cell%s (the first on line %ld); choose a "
                     "missing-value policy (drop, previous or interpolate) to load them",
-                    col, nm, R->n_empty, R->n_empty == 1 ? "" : "s", R->first_empty_line);
+                    col, nm, R->rows.n_empty, R->rows.n_empty == 1 ? "" : "s", R->rows.first_empty);
     }
 }
 
@@ -958,6 +838,7 @@ int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_er
     /* numbers are read in the C locale whatever the program's locale is */
     locale_t c_loc = newlocale(LC_ALL_MASK, "C", (locale_t)0);
     locale_t old = c_loc ? uselocale(c_loc) : (locale_t)0;
+    R.loc = c_loc;
     read_file(&R, &d, &bom);
     if (c_loc) {
         uselocale(old);
@@ -965,7 +846,7 @@ int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_er
     }
     if (!R.rc && R.state < 2)
         fail(&R, HN_ESHORT, 0, 0, "the file has a header row but no data rows");
-    size_t n_rows = R.n;
+    size_t n_rows = R.rows.n;
     if (!R.rc)
         apply_policy(&R, policy);
     if (R.rc) {
@@ -984,27 +865,28 @@ int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_er
         return HN_ENOMEM;
     }
     out->column_index = R.vcol + 1;
-    out->n = R.n;
-    out->y = R.y;
-    out->line = R.lines;
+    out->n = R.rows.n;
+    out->y = R.rows.y;
+    out->line = R.rows.line;
     out->n_rows = n_rows;
     out->is_constant = 1;
-    for (size_t i = 1; i < R.n; i++)
-        if (R.y[i] != R.y[0]) {
+    for (size_t i = 1; i < R.rows.n; i++)
+        if (R.rows.y[i] != R.rows.y[0]) {
             out->is_constant = 0;
             break;
         }
     out->has_time = R.tcol >= 0;
     out->time_index = R.tcol + 1;
     out->time_kind = R.tcol >= 0 ? R.tkind : SH_TIME_NONE;
-    out->stamp = R.st;
-    out->n_missing = R.n_empty;
+    out->stamp = R.rows.st;
+    out->n_missing = R.rows.n_empty;
     out->missing_policy = policy;
     out->delimiter = d;
     out->had_bom = bom;
     out->ncols = R.ncols;
     out->headers = R.hdr;
-    R.y = NULL, R.lines = NULL, R.st = NULL, R.hdr = NULL, R.ncols = 0;
+    memset(&R.rows, 0, sizeof R.rows);
+    R.hdr = NULL, R.ncols = 0;
     reader_free(&R);
 
     sh_freq_info fi;
