@@ -1,5 +1,6 @@
 /* diag_stats.c - accurate mean and sd, ACF by direct sums or FFT, PACF by Durbin-Levinson. */
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -9,44 +10,27 @@
 #include <gsl/gsl_fft_real.h>
 #include <gsl/gsl_fft_halfcomplex.h>
 
-/* Neumaier's compensated sum: the running sum S and the lost low-order part C. */
-typedef struct { double s, c; } ksum;
-
-static void ksum_add(ksum *k, double v)
-{
-    double t = k->s + v;
-    if (fabs(k->s) >= fabs(v))
-        k->c += (k->s - t) + v;
-    else
-        k->c += (v - t) + k->s;
-    k->s = t;
-}
-
-static double ksum_value(const ksum *k)
-{
-    return k->s + k->c;
-}
-
 /* Mean of X as a rounded part M0 plus a small correction C: m0 + c is the
- * mean to about twice double precision.  The deviations x_i - m0 are exact
- * when x_i and m0 lie within a factor of two of each other (Sterbenz), the
- * usual case for data whose spread is small against their level. */
-static int mean_parts(const double *x, size_t n, double *m0, double *c)
+ * mean to about twice double precision (the correction is the mean of the
+ * deviations from m0, a blocked compensated sum, diag_sum.h).  The
+ * deviations x_i - m0 are exact when x_i and m0 lie within a factor of two
+ * of each other (Sterbenz), the usual case for data whose spread is small
+ * against their level.  With SS, the same pass gives the sum of squares of
+ * the corrected deviations, sum ((x_i - m0) - c)^2 = S2 - c S1 with S1 and
+ * S2 the sums of the deviations from m0 and of their squares. */
+static int mean_parts(const double *x, size_t n, double *m0, double *c, double *ss)
 {
-    ksum s = { 0.0, 0.0 };
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(x[i]))
-            return HN_ENUMERIC;
-        ksum_add(&s, x[i]);
-    }
-    double m = ksum_value(&s) / (double)n;
-    ksum r = { 0.0, 0.0 };
-    for (size_t i = 0; i < n; i++)
-        ksum_add(&r, x[i] - m);
+    double s = diag_sum(x, n);
+    if (!isfinite(s))
+        return HN_ENUMERIC;   /* a non-finite value, or a sum beyond the double range */
+    double m = s / (double)n, s1, s2;
+    diag_sum_dev2(x, n, m, &s1, &s2);
     *m0 = m;
-    *c = ksum_value(&r) / (double)n;
+    *c = s1 / (double)n;
     if (!isfinite(*m0) || !isfinite(*c))
         return HN_ENUMERIC;
+    if (ss)
+        *ss = s2 - *c * s1;
     return HN_OK;
 }
 
@@ -55,7 +39,7 @@ int diag_center(const double *x, size_t n, double *d)
     double m0, c;
     if (n < 1)
         return HN_ESHORT;
-    int rc = mean_parts(x, n, &m0, &c);
+    int rc = mean_parts(x, n, &m0, &c, NULL);
     if (rc != HN_OK)
         return rc;
     for (size_t i = 0; i < n; i++)
@@ -63,68 +47,58 @@ int diag_center(const double *x, size_t n, double *d)
     return HN_OK;
 }
 
-/* Power of two by which X may be divided so that sums of its values and of
- * their squares cannot overflow: 1 for ordinary data, 2^-k (exact) when the
- * largest |x_i| is above 2^500. */
-static double safe_scale(const double *x, size_t n)
+static int all_finite(const double *x, size_t n)
 {
-    double mx = 0.0;
     for (size_t i = 0; i < n; i++)
-        if (fabs(x[i]) > mx)
-            mx = fabs(x[i]);
-    if (!(mx > 0x1p500))
-        return 1.0;
-    int e;
-    frexp(mx, &e);
-    return ldexp(1.0, -e);
+        if (!isfinite(x[i]))
+            return 0;
+    return 1;
 }
 
 int diag_mean_sd(const double *x, size_t n, double *mean, double *sd)
 {
-    double m0, c;
+    double m0, c, ss;
     if (n < 1 || (sd && n < 2))
         return HN_ESHORT;
-    for (size_t i = 0; i < n; i++)
-        if (!isfinite(x[i]))
+    /* Sums of values and of their squares cannot overflow below 2^500;
+     * above, work on x * 2^-e (an exact power-of-two scaling) and scale the
+     * results back. */
+    double mx = diag_max_abs(x, n);
+    if (mx > 0x1p500) {
+        if (!all_finite(x, n))
             return HN_ENUMERIC;
-    double k = safe_scale(x, n);
-    if (k != 1.0) {
-        /* Values near the top of the double range: work on x * k (an exact
-         * power-of-two scaling) and scale the results back. */
+        int e;
+        frexp(mx, &e);
+        double k = ldexp(1.0, -e);
         double *xs = malloc(n * sizeof *xs);
         if (!xs)
             return HN_ENOMEM;
         for (size_t i = 0; i < n; i++)
             xs[i] = x[i] * k;
-        double ms = 0.0, ss = 0.0;
-        int rc = diag_mean_sd(xs, n, mean ? &ms : NULL, sd ? &ss : NULL);
+        double ms = 0.0, sc = 0.0;
+        int rc = diag_mean_sd(xs, n, mean ? &ms : NULL, sd ? &sc : NULL);
         free(xs);
         if (rc != HN_OK)
             return rc;
         if (mean)
             *mean = ms / k;
         if (sd) {
-            *sd = ss / k;
+            *sd = sc / k;
             if (!isfinite(*sd))
                 return HN_ENUMERIC;
         }
         return HN_OK;
     }
-    int rc = mean_parts(x, n, &m0, &c);
+    int rc = mean_parts(x, n, &m0, &c, sd ? &ss : NULL);
     if (rc != HN_OK)
         return rc;
     if (mean)
         *mean = m0 + c;
     if (sd) {
-        ksum ss = { 0.0, 0.0 };
-        for (size_t i = 0; i < n; i++) {
-            double d = (x[i] - m0) - c;
-            ksum_add(&ss, d * d);
-        }
-        double v = ksum_value(&ss) / (double)(n - 1);
+        double v = ss / (double)(n - 1);
         if (!isfinite(v))
             return HN_ENUMERIC;
-        *sd = sqrt(v);
+        *sd = sqrt(v > 0.0 ? v : 0.0);
     }
     return HN_OK;
 }
@@ -138,18 +112,15 @@ static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, doub
         return HN_ESHORT;
     if (maxlag < 1 || (size_t)maxlag > n - 1)
         return HN_EINVAL;
-    double *d = malloc(n * sizeof *d);
+    double *d = malloc(n * sizeof *d), m0, c;
     if (!d)
         return HN_ENOMEM;
-    int rc = diag_center(x, n, d);
+    int rc = mean_parts(x, n, &m0, &c, NULL);
     if (rc != HN_OK) {
         free(d);
         return rc;
     }
-    ksum s = { 0.0, 0.0 };
-    for (size_t i = 0; i < n; i++)
-        ksum_add(&s, d[i] * d[i]);
-    double v = ksum_value(&s);
+    double v = diag_sum_center(x, n, m0, c, d);
     if (!isfinite(v)) {
         free(d);
         return HN_ENUMERIC;
@@ -163,39 +134,23 @@ static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, doub
     return HN_OK;
 }
 
-/* sum_{t=k}^{n-1} d_t d_{t-k}: plain sums over blocks of 64 terms (four
- * interleaved partial sums of 16 terms each), and the block sums added with
- * compensation (Neumaier).  The error is that of summing 16 terms plus a
- * compensated sum of the blocks, far below the digits the ACF is quoted to,
- * at under half the cost of compensating every term. */
-static double lag_product_sum(const double *d, size_t n, size_t k)
-{
-    ksum tot = { 0.0, 0.0 };
-    size_t t = k;
-    for (; t + 64 <= n; t += 64) {
-        double a = 0.0, b = 0.0, c = 0.0, e = 0.0;
-        const double *p = d + t, *q = d + t - k;
-        for (size_t i = 0; i < 64; i += 4) {
-            a += p[i] * q[i];
-            b += p[i + 1] * q[i + 1];
-            c += p[i + 2] * q[i + 2];
-            e += p[i + 3] * q[i + 3];
-        }
-        ksum_add(&tot, (a + b) + (c + e));
-    }
-    for (; t < n; t++)
-        ksum_add(&tot, d[t] * d[t - k]);
-    return ksum_value(&tot);
-}
-
+/* The lagged products sum_{t=k}^{n-1} d_t d_{t-k} are blocked compensated
+ * sums (diag_sum.h); all lags are formed in one cache-blocked sweep, each
+ * with the digits of its own pass. */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf)
 {
     double *d, ss0;
     int rc = acf_prepare(x, n, maxlag, &d, &ss0);
     if (rc != HN_OK)
         return rc;
-    for (int k = 1; k <= maxlag; k++)
-        acf[k - 1] = lag_product_sum(d, n, (size_t)k) / ss0;
+    if (maxlag <= DIAG_SUM_MAXLAG) {
+        diag_sum_lagged(d, n, maxlag, acf);
+        for (int k = 0; k < maxlag; k++)
+            acf[k] /= ss0;
+    } else {
+        for (int k = 1; k <= maxlag; k++)
+            acf[k - 1] = diag_sum_dot(d + k, d, n - (size_t)k) / ss0;
+    }
     free(d);
     return HN_OK;
 }

@@ -12,9 +12,9 @@
 #include <stddef.h>
 
 /* Mean and standard deviation (divisor n-1) of X[0..n-1].  The mean is found
- * to about double-double accuracy (compensated sum, then a second
- * compensated pass over the deviations that corrects it), and the sum of
- * squares is a compensated sum of those corrected deviations.  SD may be
+ * to about double-double accuracy (blocked sum, then a compensated pass over
+ * the deviations that corrects it, diag_sum.h), and the same pass gives the
+ * compensated sum of squares of the corrected deviations.  SD may be
  * NULL.  Series whose largest |x| is above 2^500 are first scaled by an
  * exact power of two, so values up to the largest double give finite
  * results.  Returns HN_OK; HN_ESHORT when n < 1 (n < 2 when SD is wanted);
@@ -40,7 +40,8 @@ int diag_acf(const double *x, size_t n, int maxlag, double *acf);
  * The direct sum's lag k does not depend on maxlag, so on that route the
  * first k values of a longer ACF equal a shorter one's bit for bit. */
 int diag_acf_is_direct(size_t n, int maxlag);
-/* Direct lagged products with compensated sums: O(n maxlag). */
+/* Direct lagged products with blocked compensated sums, all lags in one
+ * cache-blocked sweep: O(n maxlag). */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf);
 /* GSL radix-2 real FFT of the centred series zero-padded to the power of two
  * N >= 2n (so no circular wrap-around), inverse of the power spectrum:
