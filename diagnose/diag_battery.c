@@ -27,6 +27,7 @@
 #include <string.h>
 
 #include <gsl/gsl_cdf.h>
+#include <omp.h>
 
 /* Below this share of variance a significant effect is called negligible;
  * from this share up an effect is called sizeable. */
@@ -118,6 +119,17 @@ static const struct {
     { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL } },
 };
 #define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
+
+/* The table's entries by falling cost at large n, the order in which the
+ * tasks are started (results are still stored and reported in table
+ * order). */
+static const size_t COST_ORDER[] = { 5, 1, 8, 7, 2, 10, 0, 9, 3, 4, 6 };
+_Static_assert(sizeof COST_ORDER / sizeof COST_ORDER[0] == NCHECKS, "one entry per check");
+_Static_assert(NCHECKS <= DIAG_MAX_TESTS, "the battery's result holds every check");
+
+/* Below this length one thread does the battery: starting a team costs
+ * more than the checks gain. */
+#define PARALLEL_MIN_N 20000
 
 /* Run entry I of the table with the arguments its shape takes. */
 static int run_check(size_t i, const run_ctx *c, diag_test *t)
@@ -301,6 +313,56 @@ static void write_summary(diag_battery *b, const diag_options *opt)
         memcpy(b->summary + len - 3, "...", 3);
 }
 
+/* The battery's ACF of X to TOP lags, its PACF and the Ljung-Box profile
+ * (df = k - DF_ADJUST) into OUT.  HN_OK or diag_acf's status. */
+static int battery_acf(const double *x, size_t n, size_t top, int df_adjust, diag_battery *out)
+{
+    int rc = diag_acf(x, n, (int)top, out->acf);
+    if (rc != HN_OK)
+        return rc;
+    if (diag_pacf(out->acf, (int)top, out->pacf) != HN_OK) {
+        /* Left as NAN from the failing lag on (diag_pacf marks them). */
+    }
+    double dn = (double)n, q = 0.0;
+    for (size_t k = 1; k <= top; k++) {
+        q += out->acf[k - 1] * out->acf[k - 1] / (dn - (double)k);
+        out->profile_q[k - 1] = dn * (dn + 2.0) * q;
+        int df = (int)k - df_adjust;
+        out->profile_p[k - 1] = df >= 1 ? gsl_cdf_chisq_Q(out->profile_q[k - 1], (double)df) : NAN;
+    }
+    return HN_OK;
+}
+
+/* The ACF of x^2 to TOP2 lags into a new array *ACF2; NULL (and HN_OK)
+ * when a value is not finite or the squares are constant, so that each
+ * check then says why itself; HN_ENOMEM. */
+static int squares_acf(const double *x, size_t n, int top2, double **acf2)
+{
+    double *sq = malloc(n * sizeof *sq), *a = malloc((size_t)top2 * sizeof *a);
+    *acf2 = NULL;
+    if (!sq || !a) {
+        free(sq);
+        free(a);
+        return HN_ENOMEM;
+    }
+    int fin = 1;
+    for (size_t i = 0; i < n; i++) {
+        fin &= isfinite(x[i]) != 0;
+        sq[i] = x[i] * x[i];
+    }
+    int rc = fin ? diag_acf(sq, n, top2, a) : HN_ENUMERIC;
+    free(sq);
+    if (rc == HN_ENOMEM) {
+        free(a);
+        return HN_ENOMEM;
+    }
+    if (rc != HN_OK)
+        free(a);
+    else
+        *acf2 = a;
+    return HN_OK;
+}
+
 int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_battery *out)
 {
     diag_options def = diag_default_options();
@@ -362,21 +424,6 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         diag_battery_free(out);
         return HN_ENOMEM;
     }
-    rc = diag_acf(x, n, (int)top, out->acf);
-    if (rc != HN_OK) {
-        diag_battery_free(out);
-        return rc;
-    }
-    if (diag_pacf(out->acf, (int)top, out->pacf) != HN_OK) {
-        /* Left as NAN from the failing lag on (diag_pacf marks them). */
-    }
-    double dn = (double)n, q = 0.0;
-    for (size_t k = 1; k <= top; k++) {
-        q += out->acf[k - 1] * out->acf[k - 1] / (dn - (double)k);
-        out->profile_q[k - 1] = dn * (dn + 2.0) * q;
-        int df = (int)k - opt->df_adjust;
-        out->profile_p[k - 1] = df >= 1 ? gsl_cdf_chisq_Q(out->profile_q[k - 1], (double)df) : NAN;
-    }
 
     /* The autocorrelations of x (above) and of x^2, once for every check that
      * reads them, where diag_acf takes its direct route for all of them (so
@@ -384,35 +431,47 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
     int order = diag_share_order(n);
     int top2 = out->m > order ? out->m : order;
     int share_x = diag_acf_is_direct(n, (int)top);
-    double *sq = NULL, *acf2 = NULL;
-    if (share_x && (size_t)top2 <= n - 1 && diag_acf_is_direct(n, top2)) {
-        sq = malloc(n * sizeof *sq);
-        acf2 = malloc((size_t)top2 * sizeof *acf2);
-        if (!sq || !acf2) {
-            free(sq);
-            free(acf2);
-            diag_battery_free(out);
-            return HN_ENOMEM;
-        }
-        int fin = 1;
-        for (size_t i = 0; i < n; i++) {
-            fin &= isfinite(x[i]) != 0;
-            sq[i] = x[i] * x[i];
-        }
-        if (!fin || diag_acf(sq, n, top2, acf2) != HN_OK) {
-            free(acf2);               /* each check then says why itself */
-            acf2 = NULL;
-        }
-        free(sq);
-    }
+    int want2 = share_x && (size_t)top2 <= n - 1 && diag_acf_is_direct(n, top2);
 
-    /* The checks. */
+    /* The checks are independent of one another: tasks on the threads of
+     * one team, unless the battery already runs inside a parallel region
+     * (scan, batch) or the series is too short to gain; each result lands
+     * in its own slot, so the order and digits are those of one thread. */
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
-                    share_x ? out->acf : NULL, acf2, (int)top, top2 };
-    for (size_t i = 0; i < NCHECKS && out->ntests < DIAG_MAX_TESTS; i++) {
-        diag_test *t = &out->tests[out->ntests++];
-        rc = run_check(i, &ctx, t);
-        if (rc == HN_ENOMEM) {
+                    share_x ? out->acf : NULL, NULL, (int)top, top2 };
+    int rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
+    double *acf2 = NULL;
+    int par = !omp_in_parallel() && n >= PARALLEL_MIN_N;
+#pragma omp parallel if (par)
+#pragma omp single
+    {
+#pragma omp task shared(rc_acf, out) depend(out: rc_acf)
+        rc_acf = battery_acf(x, n, top, opt->df_adjust, out);
+#pragma omp task shared(rc_acf2, acf2, ctx) depend(out: rc_acf2)
+        {
+            rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2) : HN_OK;
+            ctx.acf2 = acf2;
+        }
+        for (size_t k = 0; k < NCHECKS; k++) {
+            size_t i = COST_ORDER[k];
+            if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
+#pragma omp task shared(ctx, out, rcs, rc_acf, rc_acf2) depend(in: rc_acf, rc_acf2)
+                rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
+            } else {
+#pragma omp task shared(ctx, out, rcs)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            }
+        }
+    }
+    if (rc_acf != HN_OK || rc_acf2 == HN_ENOMEM) {
+        free(acf2);
+        diag_battery_free(out);
+        return rc_acf != HN_OK ? rc_acf : HN_ENOMEM;
+    }
+    out->ntests = (int)NCHECKS;
+    for (size_t i = 0; i < NCHECKS; i++) {
+        diag_test *t = &out->tests[i];
+        if (rcs[i] == HN_ENOMEM) {
             free(acf2);
             diag_battery_free(out);
             return HN_ENOMEM;
