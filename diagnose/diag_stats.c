@@ -328,3 +328,89 @@ double diag_median_inplace(double *a, size_t n)
             hi = a[i];
     return 0.5 * (lo + hi);
 }
+
+/* Below this length the median is a selection on a copy. */
+#define MEDIAN_DIRECT_N 4096
+/* Values filtered per check of the buffer's room. */
+#define MEDIAN_CHUNK 1024
+
+/* Median by a sample (in the manner of Floyd and Rivest): from about n/64
+ * values spread over A, two bounds whose ranks in the sample enclose the
+ * median's with a margin of 4 sample standard deviations; one branch-free
+ * pass counts the values below the lower bound and copies those between
+ * the bounds (about a tenth of them), and a selection in that copy finds
+ * the middle order statistics, the values a full sort would give.  When the
+ * bounds miss (rare: the sample only affects the speed), or the copy
+ * outgrows its room, the selection runs on a copy of all of A. */
+int diag_median(const double *a, size_t n, double *med)
+{
+    if (n < 1)
+        return HN_ESHORT;
+    size_t k1 = (n - 1) / 2, k2 = n / 2;
+    if (n >= MEDIAN_DIRECT_N) {
+        size_t ns = n / 64, step = n / ns;
+        double g = 4.0 * sqrt((double)ns) / 2.0 + 2.0;   /* 4 sd of a sample rank near the middle */
+        size_t cap = (size_t)((2.0 * g / (double)ns + 0.02) * (double)n) + 2 * MEDIAN_CHUNK;
+        double *smp = malloc(ns * sizeof *smp), *buf = malloc(cap * sizeof *buf);
+        int rc = HN_ENOMEM, done = 0;
+        if (smp && buf) {
+            rc = HN_OK;
+            /* one value from each stretch of STEP, at a position that
+             * wanders within it (fixed sequence: reproducible) */
+            unsigned long long state = 0x9e3779b97f4a7c15ULL;
+            for (size_t i = 0; i < ns; i++) {
+                state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+                smp[i] = a[i * step + (size_t)((state >> 33) % step)];
+            }
+            double c = (double)k1 / (double)n * (double)ns;
+            long rl = (long)floor(c - g), rh = (long)ceil(c + g);
+            if (rl < 0)
+                rl = 0;
+            if (rh > (long)ns - 1)
+                rh = (long)ns - 1;
+            double lo = select_kth(smp, ns, (size_t)rl);
+            double hi = select_kth(smp + rl, ns - (size_t)rl, (size_t)(rh - rl));
+            size_t below = 0, m = 0, i = 0;
+            int room = 1;
+            while (i < n && room) {
+                size_t e = i + MEDIAN_CHUNK < n ? i + MEDIAN_CHUNK : n;
+                for (; i < e; i++) {
+                    double v = a[i];
+                    below += v < lo;
+                    buf[m] = v;
+                    m += (v >= lo) & (v <= hi);
+                }
+                room = m + MEDIAN_CHUNK <= cap;
+            }
+            if (room && below <= k1 && k2 < below + m) {
+                double x1 = select_kth(buf, m, k1 - below), x2 = x1;
+                if (k2 != k1) {
+                    /* the next order statistic: the least value above position k1 */
+                    x2 = buf[k1 - below + 1];
+                    for (size_t j = k1 - below + 2; j < m; j++)
+                        if (buf[j] < x2)
+                            x2 = buf[j];
+                }
+                /* + 0.0: a zero median prints as 0 whichever of the equal
+                 * zeros the selection met */
+                *med = (k2 == k1 ? x1 : 0.5 * (x1 + x2)) + 0.0;
+                done = 1;
+            }
+        }
+        free(smp);
+        if (done) {
+            free(buf);
+            return HN_OK;
+        }
+        free(buf);
+        if (rc != HN_OK)
+            return rc;
+    }
+    double *cp = malloc(n * sizeof *cp);
+    if (!cp)
+        return HN_ENOMEM;
+    memcpy(cp, a, n * sizeof *a);
+    *med = diag_median_inplace(cp, n) + 0.0;
+    free(cp);
+    return HN_OK;
+}

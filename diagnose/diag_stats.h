@@ -77,5 +77,9 @@ double diag_kolmogorov_q(double l);
 /* Median of A[0..n-1] (n > 0) by selection in O(n) on average; A is
  * reordered. */
 double diag_median_inplace(double *a, size_t n);
+/* The same median of A[0..n-1], A only read (finite values; for long A a
+ * sampled pre-filter leaves a selection on a small copy).  HN_OK, HN_ESHORT
+ * (n < 1) or HN_ENOMEM. */
+int diag_median(const double *a, size_t n, double *med);
 
 #endif

@@ -123,32 +123,52 @@ sum1(int w, int comp, const double *x, const double *y, size_t n, double m0, dou
     return diag_ksum_value(&tot);
 }
 
+/* Lanes and error terms of one lane-compensated sum. */
+typedef struct { v2d s0, e0, s1, e1; } lanes2;
+
+static inline __attribute__((always_inline)) void lanes_add(lanes2 *l, v2d u, v2d v)
+{
+    two_sum2(&l->s0, &l->e0, u);
+    two_sum2(&l->s1, &l->e1, v);
+}
+
+static inline __attribute__((always_inline)) double lanes_value(const lanes2 *l, diag_ksum *tot)
+{
+    double parts[8] = { l->s0[0], l->s0[1], l->s1[0], l->s1[1],
+                        l->e0[0], l->e0[1], l->e1[0], l->e1[1] };
+    for (int i = 0; i < 8; i++)
+        diag_ksum_add(tot, parts[i]);
+    return diag_ksum_value(tot);
+}
+
 /* Up to three compensated sums of shapes W0, W1, W2 (NW of them) over the
  * same terms in one pass, each as sum1 with COMP = 1 gives it. */
 static inline __attribute__((always_inline)) void
 sum3(int nw, int w0, int w1, int w2, const double *x, size_t n, double m0, double *out)
 {
-    diag_ksum tot[3] = { { 0.0, 0.0 }, { 0.0, 0.0 }, { 0.0, 0.0 } };
+    diag_ksum t0 = { 0.0, 0.0 }, t1 = t0, t2 = t0;
     v2d vm = splat(m0), zero = splat(0.0);
-    v2d s[3][2] = { { zero, zero }, { zero, zero }, { zero, zero } };
-    v2d e[3][2] = { { zero, zero }, { zero, zero }, { zero, zero } };
-    const int w[3] = { w0, w1, w2 };
+    lanes2 l0 = { zero, zero, zero, zero }, l1 = l0, l2 = l0;
     size_t t = 0;
-    for (; t + 4 <= n; t += 4)
-        for (int k = 0; k < nw; k++) {
-            two_sum2(&s[k][0], &e[k][0], term2(w[k], x, NULL, t, vm, zero));
-            two_sum2(&s[k][1], &e[k][1], term2(w[k], x, NULL, t + 2, vm, zero));
-        }
-    for (; t < n; t++)
-        for (int k = 0; k < nw; k++)
-            diag_ksum_add(&tot[k], term1(w[k], x, NULL, t, m0, 0.0));
-    for (int k = 0; k < nw; k++) {
-        double parts[8] = { s[k][0][0], s[k][0][1], s[k][1][0], s[k][1][1],
-                            e[k][0][0], e[k][0][1], e[k][1][0], e[k][1][1] };
-        for (int l = 0; l < 8; l++)
-            diag_ksum_add(&tot[k], parts[l]);
-        out[k] = diag_ksum_value(&tot[k]);
+    for (; t + 4 <= n; t += 4) {
+        lanes_add(&l0, term2(w0, x, NULL, t, vm, zero), term2(w0, x, NULL, t + 2, vm, zero));
+        if (nw > 1)
+            lanes_add(&l1, term2(w1, x, NULL, t, vm, zero), term2(w1, x, NULL, t + 2, vm, zero));
+        if (nw > 2)
+            lanes_add(&l2, term2(w2, x, NULL, t, vm, zero), term2(w2, x, NULL, t + 2, vm, zero));
     }
+    for (; t < n; t++) {
+        diag_ksum_add(&t0, term1(w0, x, NULL, t, m0, 0.0));
+        if (nw > 1)
+            diag_ksum_add(&t1, term1(w1, x, NULL, t, m0, 0.0));
+        if (nw > 2)
+            diag_ksum_add(&t2, term1(w2, x, NULL, t, m0, 0.0));
+    }
+    out[0] = lanes_value(&l0, &t0);
+    if (nw > 1)
+        out[1] = lanes_value(&l1, &t1);
+    if (nw > 2)
+        out[2] = lanes_value(&l2, &t2);
 }
 
 double diag_sum(const double *x, size_t n)
@@ -197,6 +217,21 @@ double diag_max_abs(const double *x, size_t n)
     for (; i < n; i++)
         r = fabs(x[i]) > r ? fabs(x[i]) : r;
     return r;
+}
+
+int diag_all_finite(const double *x, size_t n)
+{
+    /* x * 0 is a zero for every finite x and NaN otherwise */
+    v2d a = splat(0.0), b = a;
+    size_t i = 0;
+    for (; i + 4 <= n; i += 4) {
+        a += load2(x + i) * 0.0;
+        b += load2(x + i + 2) * 0.0;
+    }
+    double z = (a[0] + a[1]) + (b[0] + b[1]);
+    for (; i < n; i++)
+        z += x[i] * 0.0;
+    return z == 0.0;
 }
 
 /* Two neighbouring blocks of 64 products p_i q_i at once (two independent

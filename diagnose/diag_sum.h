@@ -54,6 +54,8 @@ void diag_sum_dev2(const double *x, size_t n, double m, double *s1, double *s2);
 double diag_sum_center(const double *x, size_t n, double m0, double c, double *d);
 /* sum_i d_i^2, d_i^3 and d_i^4 into S[0..2], in one pass. */
 void diag_sum_moments(const double *d, size_t n, double s[3]);
+/* 1 when every x_i is finite, else 0 (one vectorised pass, no branch). */
+int diag_all_finite(const double *x, size_t n);
 /* The largest |x_i| (0 for n = 0; NaNs are passed over). */
 double diag_max_abs(const double *x, size_t n);
 

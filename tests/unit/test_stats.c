@@ -278,6 +278,45 @@ static void test_sums_rounded_data(void **state)
     gsl_rng_free(r);
 }
 
+static int cmp_dbl(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return x < y ? -1 : x > y;
+}
+
+/* The sampled median equals the middle of a full sort, for lengths on both
+ * sides of the direct threshold and data that defeat a sample (sorted,
+ * reversed, few distinct values, constant, a spike of ties at the middle). */
+static void test_median_against_sort(void **state)
+{
+    (void)state;
+    const size_t ns[6] = { 7, 4095, 4096, 4097, 10000, 100001 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 3UL);
+    double *x = malloc(100001 * sizeof *x), *c = malloc(100001 * sizeof *c);
+    assert_non_null(x);
+    assert_non_null(c);
+    for (int a = 0; a < 6; a++) {
+        size_t n = ns[a];
+        for (int kind = 0; kind < 6; kind++) {
+            for (size_t i = 0; i < n; i++) {
+                double g = gsl_ran_gaussian(r, 1.0);
+                x[i] = kind == 0 ? g : kind == 1 ? (double)i : kind == 2 ? -(double)i
+                     : kind == 3 ? (double)(i % 7) : kind == 4 ? 2.5
+                     : (i % 3 ? 0.25 : g);
+            }
+            memcpy(c, x, n * sizeof *x);
+            qsort(c, n, sizeof *c, cmp_dbl);
+            double want = n % 2 ? c[n / 2] : 0.5 * (c[n / 2 - 1] + c[n / 2]), med;
+            assert_int_equal(diag_median(x, n, &med), HN_OK);
+            assert_true(med == want);
+        }
+    }
+    free(x);
+    free(c);
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -288,6 +327,7 @@ int main(void)
         cmocka_unit_test(test_pacf_closed_forms),
         cmocka_unit_test(test_lagged_sweep),
         cmocka_unit_test(test_sums_rounded_data),
+        cmocka_unit_test(test_median_against_sort),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
