@@ -60,6 +60,9 @@ typedef struct {
      * read them (NULL: each such check computes its own) */
     const double *acf, *acf2;
     int nacf, nacf2;
+    /* x less its mean (diag_center_ss; NULL: none) and the mean and sd */
+    const double *d;
+    double mean, sd;
 } run_ctx;
 
 /* The argument shapes of the checks in diag_checks.h. */
@@ -77,6 +80,10 @@ typedef int (*fn_acf2_m)(const double *acf2, int nlags, size_t n, int m, double 
                          diag_test *out);
 typedef int (*fn_acf_plain)(const double *x, size_t n, const double *acf, int nlags,
                             double alpha, diag_test *out);
+/* The forms that take the battery's centred copy or its mean and sd. */
+typedef int (*fn_centred_acf)(const double *x, const double *d, size_t n, const double *acf,
+                              int nlags, double alpha, diag_test *out);
+typedef int (*fn_from_ms)(double mean, double sd, size_t n, double alpha, diag_test *out);
 
 typedef enum {
     ARG_PLAIN,      /* (x, n, alpha, out) */
@@ -104,19 +111,35 @@ static const struct {
         fn_acf2_m sq;
         fn_acf_plain plain;
     } a;
+    struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd */
+        fn_centred_acf dacf;
+        fn_moments d;
+        fn_from_ms ms;
+    } c;
 } CHECKS[] = {
-    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL } },
-    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf } },
-    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf } },
+    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL },
+                                    { .ms = diag_mean_ttest_from } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf },
+                                    { NULL, NULL, NULL } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf },
+                                    { NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram },
-                                    { .plain = diag_cum_periodogram_acf } },
-    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf } },
-    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { NULL, NULL, NULL } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL } },
-    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL } },
+                                    { .plain = diag_cum_periodogram_acf },
+                                    { .dacf = diag_cum_periodogram_centred } },
+    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf },
+                                    { NULL, NULL, NULL } },
+    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL },
+                                    { .d = diag_jarque_bera_centred } },
 };
 #define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
 
@@ -135,6 +158,12 @@ _Static_assert(NCHECKS <= DIAG_MAX_TESTS, "the battery's result holds every chec
 static int run_check(size_t i, const run_ctx *c, diag_test *t)
 {
     double skew, kurt;
+    if (CHECKS[i].c.dacf && c->d && c->acf)
+        return CHECKS[i].c.dacf(c->x, c->d, c->n, c->acf, c->nacf, c->alpha, t);
+    if (CHECKS[i].c.d && c->d)
+        return CHECKS[i].c.d(c->d, c->n, c->alpha, t, &skew, &kurt);
+    if (CHECKS[i].c.ms)
+        return CHECKS[i].c.ms(c->mean, c->sd, c->n, c->alpha, t);
     if (CHECKS[i].a.adj && c->acf)
         return CHECKS[i].a.adj(c->acf, c->nacf, c->n, c->m, c->df_adjust, c->alpha, t);
     if (CHECKS[i].a.sq && c->acf2)
@@ -313,11 +342,13 @@ static void write_summary(diag_battery *b, const diag_options *opt)
         memcpy(b->summary + len - 3, "...", 3);
 }
 
-/* The battery's ACF of X to TOP lags, its PACF and the Ljung-Box profile
- * (df = k - DF_ADJUST) into OUT.  HN_OK or diag_acf's status. */
-static int battery_acf(const double *x, size_t n, size_t top, int df_adjust, diag_battery *out)
+/* The battery's ACF of X to TOP lags (from D and SS0 when given, the
+ * direct route's digits), its PACF and the Ljung-Box profile (df = k -
+ * DF_ADJUST) into OUT.  HN_OK or diag_acf's status. */
+static int battery_acf(const double *x, const double *d, double ss0, size_t n, size_t top,
+                       int df_adjust, diag_battery *out)
 {
-    int rc = diag_acf(x, n, (int)top, out->acf);
+    int rc = d ? diag_acf_centred(d, n, ss0, (int)top, out->acf) : diag_acf(x, n, (int)top, out->acf);
     if (rc != HN_OK)
         return rc;
     if (diag_pacf(out->acf, (int)top, out->pacf) != HN_OK) {
@@ -437,16 +468,28 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
      * one team, unless the battery already runs inside a parallel region
      * (scan, batch) or the series is too short to gain; each result lands
      * in its own slot, so the order and digits are those of one thread. */
+    /* On the direct route the series is centred once for the ACF, the
+     * cumulative periodogram and Jarque-Bera (each would form the same copy). */
+    double *dev = share_x ? malloc(n * sizeof *dev) : NULL, ss0 = 0.0;
+    if (share_x && !dev) {
+        diag_battery_free(out);
+        return HN_ENOMEM;
+    }
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
-                    share_x ? out->acf : NULL, NULL, (int)top, top2 };
-    int rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
+                    share_x ? out->acf : NULL, NULL, (int)top, top2, NULL, out->mean, out->sd };
+    int rc_dev = HN_OK, rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
     double *acf2 = NULL;
     int par = !omp_in_parallel() && n >= PARALLEL_MIN_N;
 #pragma omp parallel if (par)
 #pragma omp single
     {
-#pragma omp task shared(rc_acf, out) depend(out: rc_acf)
-        rc_acf = battery_acf(x, n, top, opt->df_adjust, out);
+#pragma omp task shared(rc_dev, dev, ss0, ctx) depend(out: rc_dev)
+        if (dev) {
+            rc_dev = diag_center_ss(x, n, dev, &ss0);
+            ctx.d = rc_dev == HN_OK ? dev : NULL;
+        }
+#pragma omp task shared(rc_acf, rc_dev, out, ctx, ss0) depend(in: rc_dev) depend(out: rc_acf)
+        rc_acf = rc_dev == HN_OK ? battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out) : rc_dev;
 #pragma omp task shared(rc_acf2, acf2, ctx) depend(out: rc_acf2)
         {
             rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2) : HN_OK;
@@ -457,12 +500,17 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
             if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
 #pragma omp task shared(ctx, out, rcs, rc_acf, rc_acf2) depend(in: rc_acf, rc_acf2)
                 rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
+            } else if (CHECKS[i].c.d) {
+#pragma omp task shared(ctx, out, rcs, rc_dev) depend(in: rc_dev)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
             } else {
 #pragma omp task shared(ctx, out, rcs)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
             }
         }
     }
+    free(dev);
+    ctx.d = NULL;
     if (rc_acf != HN_OK || rc_acf2 == HN_ENOMEM) {
         free(acf2);
         diag_battery_free(out);

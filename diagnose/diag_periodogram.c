@@ -3,35 +3,76 @@
 #include "hn_status.h"
 
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include <fftw3.h>
 
 /* FFTW's planner is not thread-safe and the battery runs in parallel threads
- * (scan, batch, its own tasks): every plan is made and destroyed under this
- * one lock; executing a plan needs none. */
-static fftw_plan plan_c2c(int n, fftw_complex *a, int sign)
-{
+ * (scan, batch, its own tasks): every plan is made and destroyed under one
+ * lock; executing a plan needs none.  Making a plan costs about half a
+ * transform (its trigonometric tables), so one plan per kind is kept for
+ * the length last used and run on new arrays (fftw_alloc gives every array
+ * the same alignment, as FFTW's new-array execution requires); a plan
+ * still running elsewhere when its slot is taken is freed by its last user. */
+enum { K_C2C_FWD, K_C2C_INV, K_R2C, K_KINDS };
+
+typedef struct kept_plan {
     fftw_plan p;
+    int n, users, current;
+} kept_plan;
+
+static kept_plan *kept[K_KINDS];
+
+/* A plan of KIND and length N for arrays like IN/OUT; NULL when FFTW
+ * cannot make one.  Release with plan_release. */
+static kept_plan *plan_get(int kind, int n, void *in, void *out)
+{
+    kept_plan *k = NULL;
 #pragma omp critical(diag_fftw_planner)
-    p = fftw_plan_dft_1d(n, a, a, sign, FFTW_ESTIMATE);
-    return p;
+    {
+        if (kept[kind] && kept[kind]->n == n) {
+            k = kept[kind];
+            k->users++;
+        } else {
+            fftw_plan p = kind == K_R2C
+                ? fftw_plan_dft_r2c_1d(n, in, out, FFTW_ESTIMATE)
+                : fftw_plan_dft_1d(n, in, out, kind == K_C2C_FWD ? FFTW_FORWARD : FFTW_BACKWARD,
+                                   FFTW_ESTIMATE);
+            k = p ? malloc(sizeof *k) : NULL;
+            if (k) {
+                k->p = p;
+                k->n = n;
+                k->users = 1;
+                k->current = 1;
+                if (kept[kind]) {
+                    kept[kind]->current = 0;
+                    if (kept[kind]->users == 0) {
+                        fftw_destroy_plan(kept[kind]->p);
+                        free(kept[kind]);
+                    }
+                }
+                kept[kind] = k;
+            } else if (p) {
+                fftw_destroy_plan(p);
+            }
+        }
+    }
+    return k;
 }
 
-static fftw_plan plan_r2c(int n, double *in, fftw_complex *out)
+static void plan_release(kept_plan *k)
 {
-    fftw_plan p;
-#pragma omp critical(diag_fftw_planner)
-    p = fftw_plan_dft_r2c_1d(n, in, out, FFTW_ESTIMATE);
-    return p;
-}
-
-static void plan_free(fftw_plan p)
-{
-    if (!p)
+    if (!k)
         return;
 #pragma omp critical(diag_fftw_planner)
-    fftw_destroy_plan(p);
+    {
+        k->users--;
+        if (!k->current && k->users == 0) {
+            fftw_destroy_plan(k->p);
+            free(k);
+        }
+    }
 }
 
 /* Largest prime factor of n (n >= 2), by trial division. */
@@ -106,19 +147,19 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
     size_t m = n / 2;
     fftw_complex *a = fftw_alloc_complex(m);
     double *w = fftw_alloc_real(2 * (q + 1));
-    fftw_plan p = NULL;
+    kept_plan *p = NULL;
     int rc = HN_OK;
     if (!a || !w) {
         rc = HN_ENOMEM;
         goto done;
     }
     memcpy(a, d, 2 * m * sizeof *d);   /* z_t = d_{2t} + i d_{2t+1}: the same layout */
-    p = plan_c2c((int)m, a, FFTW_FORWARD);
+    p = plan_get(K_C2C_FWD, (int)m, a, a);
     if (!p) {
         rc = HN_ENOMEM;
         goto done;
     }
-    fftw_execute(p);
+    fftw_execute_dft(p->p, a, a);
     twiddles(n, q, w);
     for (size_t j = 1; j <= q; j++) {
         double zr = a[j][0], zi = a[j][1];
@@ -130,7 +171,7 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
         I[j - 1] = xr * xr + xi * xi;
     }
 done:
-    plan_free(p);
+    plan_release(p);
     fftw_free(a);
     fftw_free(w);
     return rc;
@@ -141,23 +182,23 @@ static int periodogram_real(const double *d, size_t n, size_t q, double *I)
 {
     double *in = fftw_alloc_real(n);
     fftw_complex *out = fftw_alloc_complex(n / 2 + 1);
-    fftw_plan p = NULL;
+    kept_plan *p = NULL;
     int rc = HN_OK;
     if (!in || !out) {
         rc = HN_ENOMEM;
         goto done;
     }
     memcpy(in, d, n * sizeof *d);
-    p = plan_r2c((int)n, in, out);
+    p = plan_get(K_R2C, (int)n, in, out);
     if (!p) {
         rc = HN_ENOMEM;
         goto done;
     }
-    fftw_execute(p);
+    fftw_execute_dft_r2c(p->p, in, out);
     for (size_t j = 1; j <= q; j++)
         I[j - 1] = out[j][0] * out[j][0] + out[j][1] * out[j][1];
 done:
-    plan_free(p);
+    plan_release(p);
     fftw_free(in);
     fftw_free(out);
     return rc;
@@ -173,7 +214,7 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
 {
     size_t L = smooth_length(2 * n - 1);
     fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
-    fftw_plan fwd = NULL, inv = NULL;
+    kept_plan *fwd = NULL, *inv = NULL;
     int rc = HN_OK;
     if (!a || !b) {
         rc = HN_ENOMEM;
@@ -196,27 +237,27 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
             b[L - t][1] = sn;
         }
     }
-    fwd = plan_c2c((int)L, a, FFTW_FORWARD);
-    inv = plan_c2c((int)L, a, FFTW_BACKWARD);
+    fwd = plan_get(K_C2C_FWD, (int)L, a, a);
+    inv = plan_get(K_C2C_INV, (int)L, a, a);
     if (!fwd || !inv) {
         rc = HN_ENOMEM;
         goto done;
     }
-    fftw_execute(fwd);
-    fftw_execute_dft(fwd, b, b);   /* same length, alignment and in-place layout */
+    fftw_execute_dft(fwd->p, a, a);
+    fftw_execute_dft(fwd->p, b, b);
     for (size_t k = 0; k < L; k++) {
         double re = a[k][0] * b[k][0] - a[k][1] * b[k][1];
         double im = a[k][0] * b[k][1] + a[k][1] * b[k][0];
         a[k][0] = re;
         a[k][1] = im;
     }
-    fftw_execute(inv);
+    fftw_execute_dft(inv->p, a, a);
     double s = 1.0 / ((double)L * (double)L);
     for (size_t j = 1; j <= q; j++)
         I[j - 1] = (a[j][0] * a[j][0] + a[j][1] * a[j][1]) * s;
 done:
-    plan_free(fwd);
-    plan_free(inv);
+    plan_release(fwd);
+    plan_release(inv);
     fftw_free(a);
     fftw_free(b);
     return rc;

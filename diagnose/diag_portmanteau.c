@@ -19,6 +19,23 @@ static int bad_alpha(double alpha)
     return !(alpha > 0.0 && alpha < 1.0);
 }
 
+/* The t-test from the mean and sd (sd > 0) of N values. */
+static void ttest_fill(double mean, double sd, size_t n, double alpha, diag_test *out)
+{
+    static const char name[] = "mean-t";
+    double df = (double)(n - 1);
+    double t = mean / (sd / sqrt((double)n));
+    double p = 2.0 * gsl_cdf_tdist_Q(fabs(t), df);
+    if (p > 1.0)
+        p = 1.0;
+    memset(out, 0, sizeof *out);
+    diag_test_fill(out, name, DIAG_MEAN, t, df, p, alpha, NAN, NULL);
+    out->effect = mean / sd;
+    out->effect_label = "mean in standard deviations";
+    snprintf(out->detail, sizeof out->detail, "mean %.6g, sd %.6g, n %zu; two-sided Student-t",
+             mean, sd, n);
+}
+
 int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out)
 {
     static const char name[] = "mean-t";
@@ -40,17 +57,30 @@ int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out)
         diag_test_invalid(out, name, DIAG_MEAN, "the values are constant: no spread to test against");
         return HN_EINVAL;
     }
-    double df = (double)(n - 1);
-    double t = mean / (sd / sqrt((double)n));
-    double p = 2.0 * gsl_cdf_tdist_Q(fabs(t), df);
-    if (p > 1.0)
-        p = 1.0;
-    memset(out, 0, sizeof *out);
-    diag_test_fill(out, name, DIAG_MEAN, t, df, p, alpha, NAN, NULL);
-    out->effect = mean / sd;
-    out->effect_label = "mean in standard deviations";
-    snprintf(out->detail, sizeof out->detail, "mean %.6g, sd %.6g, n %zu; two-sided Student-t",
-             mean, sd, n);
+    ttest_fill(mean, sd, n, alpha, out);
+    return HN_OK;
+}
+
+int diag_mean_ttest_from(double mean, double sd, size_t n, double alpha, diag_test *out)
+{
+    static const char name[] = "mean-t";
+    if (bad_alpha(alpha)) {
+        diag_test_invalid(out, name, DIAG_MEAN, "alpha must lie strictly between 0 and 1");
+        return HN_EINVAL;
+    }
+    if (n < 2) {
+        diag_test_invalid(out, name, DIAG_MEAN, "needs at least 2 observations");
+        return HN_ESHORT;
+    }
+    if (!isfinite(mean) || !isfinite(sd)) {
+        diag_test_invalid(out, name, DIAG_MEAN, "a value is not finite");
+        return HN_EINVAL;
+    }
+    if (!(sd > 0.0)) {
+        diag_test_invalid(out, name, DIAG_MEAN, "the values are constant: no spread to test against");
+        return HN_EINVAL;
+    }
+    ttest_fill(mean, sd, n, alpha, out);
     return HN_OK;
 }
 
@@ -250,8 +280,8 @@ double diag_kolmogorov_q(double l)
  * to Kolmogorov's limiting distribution with Stephens' finite-sample factor
  * sqrt(M) + 0.12 + 0.11/sqrt(M), M = q-1 (Stephens, M. A. (1970), J. R.
  * Statist. Soc. B 32, 115-122; factor recalled from memory). */
-static int cum_periodogram(const double *x, size_t n, double alpha, diag_test *out,
-                           const double *acf_given, int acf_given_lags)
+static int cum_periodogram(const double *x, const double *centred, size_t n, double alpha,
+                           diag_test *out, const double *acf_given, int acf_given_lags)
 {
     static const char name[] = "cum-periodogram";
     if (bad_alpha(alpha)) {
@@ -263,14 +293,15 @@ static int cum_periodogram(const double *x, size_t n, double alpha, diag_test *o
         return HN_ESHORT;
     }
     size_t q = (n - 1) / 2, M = q - 1;
-    double *d = malloc(n * sizeof *d), *I = malloc(q * sizeof *I);
+    double *dev = centred ? NULL : malloc(n * sizeof *dev), *I = malloc(q * sizeof *I);
+    const double *d = centred ? centred : dev;
     int rc = HN_OK;
     if (!d || !I) {
         rc = HN_ENOMEM;
         diag_test_invalid(out, name, DIAG_SERIAL, "out of memory");
         goto done;
     }
-    if (diag_center(x, n, d) != HN_OK) {
+    if (!centred && diag_center(x, n, dev) != HN_OK) {
         rc = HN_EINVAL;
         diag_test_invalid(out, name, DIAG_SERIAL, "a value is not finite");
         goto done;
@@ -330,18 +361,24 @@ static int cum_periodogram(const double *x, size_t n, double alpha, diag_test *o
         }
     }
 done:
-    free(d);
+    free(dev);
     free(I);
     return rc;
 }
 
 int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out)
 {
-    return cum_periodogram(x, n, alpha, out, NULL, 0);
+    return cum_periodogram(x, NULL, n, alpha, out, NULL, 0);
 }
 
 int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int nlags,
                              double alpha, diag_test *out)
 {
-    return cum_periodogram(x, n, alpha, out, acf, nlags);
+    return cum_periodogram(x, NULL, n, alpha, out, acf, nlags);
+}
+
+int diag_cum_periodogram_centred(const double *x, const double *d, size_t n, const double *acf,
+                                 int nlags, double alpha, diag_test *out)
+{
+    return cum_periodogram(x, d, n, alpha, out, acf, nlags);
 }

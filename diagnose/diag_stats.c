@@ -103,6 +103,21 @@ int diag_mean_sd(const double *x, size_t n, double *mean, double *sd)
     return HN_OK;
 }
 
+int diag_center_ss(const double *x, size_t n, double *d, double *ss)
+{
+    double m0, c;
+    if (n < 1)
+        return HN_ESHORT;
+    int rc = mean_parts(x, n, &m0, &c, NULL);
+    if (rc != HN_OK)
+        return rc;
+    double v = diag_sum_center(x, n, m0, c, d);
+    if (!isfinite(v))
+        return HN_ENUMERIC;
+    *ss = v;
+    return HN_OK;
+}
+
 /* Shared argument checks and centring: a malloc'd array of deviations and
  * their compensated sum of squares. */
 static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, double *ss0)
@@ -112,26 +127,32 @@ static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, doub
         return HN_ESHORT;
     if (maxlag < 1 || (size_t)maxlag > n - 1)
         return HN_EINVAL;
-    double *d = malloc(n * sizeof *d), m0, c;
+    double *d = malloc(n * sizeof *d), v;
     if (!d)
         return HN_ENOMEM;
-    int rc = mean_parts(x, n, &m0, &c, NULL);
+    int rc = diag_center_ss(x, n, d, &v);
+    if (rc == HN_OK && v <= 0.0)
+        rc = HN_ECONST;
     if (rc != HN_OK) {
         free(d);
         return rc;
     }
-    double v = diag_sum_center(x, n, m0, c, d);
-    if (!isfinite(v)) {
-        free(d);
-        return HN_ENUMERIC;
-    }
-    if (v <= 0.0) {
-        free(d);
-        return HN_ECONST;
-    }
     *dev = d;
     *ss0 = v;
     return HN_OK;
+}
+
+/* Lags 1..MAXLAG of the centred D with lag-0 sum SS0. */
+static void acf_sums(const double *d, size_t n, double ss0, int maxlag, double *acf)
+{
+    if (maxlag <= DIAG_SUM_MAXLAG) {
+        diag_sum_lagged(d, n, maxlag, acf);
+        for (int k = 0; k < maxlag; k++)
+            acf[k] /= ss0;
+    } else {
+        for (int k = 1; k <= maxlag; k++)
+            acf[k - 1] = diag_sum_dot(d + k, d, n - (size_t)k) / ss0;
+    }
 }
 
 /* The lagged products sum_{t=k}^{n-1} d_t d_{t-k} are blocked compensated
@@ -143,15 +164,20 @@ int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf)
     int rc = acf_prepare(x, n, maxlag, &d, &ss0);
     if (rc != HN_OK)
         return rc;
-    if (maxlag <= DIAG_SUM_MAXLAG) {
-        diag_sum_lagged(d, n, maxlag, acf);
-        for (int k = 0; k < maxlag; k++)
-            acf[k] /= ss0;
-    } else {
-        for (int k = 1; k <= maxlag; k++)
-            acf[k - 1] = diag_sum_dot(d + k, d, n - (size_t)k) / ss0;
-    }
+    acf_sums(d, n, ss0, maxlag, acf);
     free(d);
+    return HN_OK;
+}
+
+int diag_acf_centred(const double *d, size_t n, double ss0, int maxlag, double *acf)
+{
+    if (n < 2)
+        return HN_ESHORT;
+    if (maxlag < 1 || (size_t)maxlag > n - 1)
+        return HN_EINVAL;
+    if (!(ss0 > 0.0))
+        return HN_ECONST;
+    acf_sums(d, n, ss0, maxlag, acf);
     return HN_OK;
 }
 

@@ -27,6 +27,9 @@ int diag_mean_sd(const double *x, size_t n, double *mean, double *sd);
  * as the data allow even when |xbar| >> sd.  Returns HN_OK, HN_ESHORT when
  * n < 1, HN_ENUMERIC for a non-finite value. */
 int diag_center(const double *x, size_t n, double *d);
+/* The same deviations and, in the same pass, SS = sum_i D[i]^2 (compensated),
+ * exactly as diag_acf forms them.  HN_OK, HN_ESHORT, HN_ENUMERIC. */
+int diag_center_ss(const double *x, size_t n, double *d, double *ss);
 
 /* Autocorrelations r_1..r_maxlag of X into ACF[0..maxlag-1] (caller
  * allocates maxlag doubles).  diag_acf chooses the method by cost:
@@ -43,6 +46,10 @@ int diag_acf_is_direct(size_t n, int maxlag);
 /* Direct lagged products with blocked compensated sums, all lags in one
  * cache-blocked sweep: O(n maxlag). */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf);
+/* The direct route from D and SS0 as diag_center_ss gives them (only read):
+ * the digits of diag_acf_direct on the original series.  HN_OK, HN_EINVAL,
+ * HN_ESHORT, HN_ECONST (ss0 not positive). */
+int diag_acf_centred(const double *d, size_t n, double ss0, int maxlag, double *acf);
 /* GSL radix-2 real FFT of the centred series zero-padded to the power of two
  * N >= 2n (so no circular wrap-around), inverse of the power spectrum:
  * O(N log N).  The lag-0 sum of squares is the compensated direct sum. */
