@@ -108,48 +108,24 @@ int diag_periodogram_route(size_t n)
     return largest_prime_factor(n) <= 97 ? 1 : 2;
 }
 
-/* exp(-2 pi i j / n) for j = 0..q as the product of a coarse and a fine
- * table (j = a B + b), so that about 2 sqrt(q) sines and cosines are
- * evaluated instead of 2q; each factor is correctly rounded to within an
- * ulp, so the product is good to a few ulps, below the transform's own
- * rounding.  W: 2(q+1) doubles. */
-static void twiddles(size_t n, size_t q, double *w)
-{
-    size_t B = (size_t)sqrt((double)q) + 1;
-    for (size_t a = 0; a * B <= q; a++) {
-        size_t ja = a * B;
-        double tha = 2.0 * M_PI * (double)ja / (double)n;
-        double ca = cos(tha), sa = -sin(tha);
-        for (size_t b = 0; b < B && ja + b <= q; b++) {
-            double cb, sb;
-            if (a == 0) {
-                double th = 2.0 * M_PI * (double)b / (double)n;
-                cb = cos(th);
-                sb = -sin(th);
-            } else {
-                cb = w[2 * b];
-                sb = w[2 * b + 1];
-            }
-            w[2 * (ja + b)] = ca * cb - sa * sb;
-            w[2 * (ja + b) + 1] = ca * sb + sa * cb;
-        }
-    }
-}
-
 /* Even n = 2m: with z_t = d_{2t} + i d_{2t+1} and Z its length-m DFT, the
  * even and odd samples have the transforms E_j = (Z_j + conj Z_{m-j})/2 and
  * O_j = (Z_j - conj Z_{m-j})/(2i), and X_j = E_j + exp(-2 pi i j/n) O_j.
  * FFTW's complex transform of length m handles any factorisation of m in
  * O(m log m), and about twice as fast as its real transform of length n
- * including the planning. */
+ * including the planning.  The twiddles exp(-2 pi i j/n) are formed on the
+ * way as products of a coarse and a fine factor (j = a B + b, B about
+ * sqrt(q)), so that about 2 sqrt(q) sines and cosines are evaluated
+ * instead of 2q; each factor is correctly rounded to within an ulp, so the
+ * product is good to a few ulps, below the transform's own rounding. */
 static int periodogram_even(const double *d, size_t n, size_t q, double *I)
 {
-    size_t m = n / 2;
+    size_t m = n / 2, B = (size_t)sqrt((double)q) + 1;
     fftw_complex *a = fftw_alloc_complex(m);
-    double *w = fftw_alloc_real(2 * (q + 1));
+    double *fine = malloc(2 * B * sizeof *fine);
     kept_plan *p = NULL;
     int rc = HN_OK;
-    if (!a || !w) {
+    if (!a || !fine) {
         rc = HN_ENOMEM;
         goto done;
     }
@@ -160,20 +136,32 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
         goto done;
     }
     fftw_execute_dft(p->p, a, a);
-    twiddles(n, q, w);
-    for (size_t j = 1; j <= q; j++) {
-        double zr = a[j][0], zi = a[j][1];
-        double cr = a[m - j][0], ci = -a[m - j][1];               /* conj Z_{m-j} */
-        double er = 0.5 * (zr + cr), ei = 0.5 * (zi + ci);
-        double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
-        double c = w[2 * j], sn = w[2 * j + 1];
-        double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
-        I[j - 1] = xr * xr + xi * xi;
+    for (size_t b = 0; b < B; b++) {
+        double th = 2.0 * M_PI * (double)b / (double)n;
+        fine[2 * b] = cos(th);
+        fine[2 * b + 1] = -sin(th);
+    }
+    for (size_t j0 = 0; j0 <= q; j0 += B) {
+        double tha = 2.0 * M_PI * (double)j0 / (double)n;
+        double ca = cos(tha), sa = -sin(tha);
+        for (size_t b = 0; b < B && j0 + b <= q; b++) {
+            size_t j = j0 + b;
+            if (j == 0)
+                continue;
+            double cb = fine[2 * b], sb = fine[2 * b + 1];
+            double c = ca * cb - sa * sb, sn = ca * sb + sa * cb;
+            double zr = a[j][0], zi = a[j][1];
+            double cr = a[m - j][0], ci = -a[m - j][1];               /* conj Z_{m-j} */
+            double er = 0.5 * (zr + cr), ei = 0.5 * (zi + ci);
+            double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
+            double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
+            I[j - 1] = xr * xr + xi * xi;
+        }
     }
 done:
     plan_release(p);
     fftw_free(a);
-    fftw_free(w);
+    free(fine);
     return rc;
 }
 
