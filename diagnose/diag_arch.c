@@ -216,6 +216,54 @@ cross_sums(const double *sq, size_t n, const size_t q, const double *mean, doubl
     *sst = s;
 }
 
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+#include <string.h>
+#pragma GCC diagnostic ignored "-Wpsabi"   /* the vectors below stay inside one function */
+typedef double v4d __attribute__((vector_size(32)));
+
+/* cross_sums for q = 5 with AVX: each lane of a register is one of the
+ * sums, fed the same product in the same order of t (row j of C, g_j and
+ * SST; the upper triangle is formed too and dropped), so the digits are
+ * those of cross_sums. */
+__attribute__((target("avx2"))) static void
+cross_sums5_avx2(const double *sq, size_t n, const double *mean, double *c, double *g,
+                 double *sst)
+{
+    const v4d m0 = { mean[4], mean[3], mean[2], mean[1] }, z = { 0.0, 0.0, 0.0, 0.0 };
+    v4d a0 = z, a1 = z, a2 = z, a3 = z, a4 = z, b0 = z, b1 = z, b2 = z, b3 = z, b4 = z, y = z;
+    for (size_t t = 5; t < n; t++) {
+        v4d v;
+        memcpy(&v, sq + t - 4, sizeof v);
+        v -= m0;                                    /* (dv3, dv2, dv1, dv0) */
+        double d4 = sq[t - 5] - mean[5], dy = sq[t] - mean[0];
+        v4d w = { d4, dy, 0.0, 0.0 };
+        v4d s0 = { v[3], v[3], v[3], v[3] }, s1 = { v[2], v[2], v[2], v[2] };
+        v4d s2 = { v[1], v[1], v[1], v[1] }, s3 = { v[0], v[0], v[0], v[0] };
+        v4d s4 = { d4, d4, d4, d4 }, sy = { dy, dy, dy, dy };
+        a0 += s0 * v;
+        b0 += s0 * w;
+        a1 += s1 * v;
+        b1 += s1 * w;
+        a2 += s2 * v;
+        b2 += s2 * w;
+        a3 += s3 * v;
+        b3 += s3 * w;
+        a4 += s4 * v;
+        b4 += s4 * w;
+        y += sy * w;
+    }
+    const v4d A[5] = { a0, a1, a2, a3, a4 }, Bv[5] = { b0, b1, b2, b3, b4 };
+    for (size_t j = 0; j < 5; j++) {
+        for (size_t k = 0; k <= j && k < 4; k++)
+            c[j * 5 + k] = A[j][3 - k];
+        if (j == 4)
+            c[4 * 5 + 4] = Bv[4][0];
+        g[j] = Bv[j][1];
+    }
+    *sst = y[1];
+}
+#endif
+
 /* The same sums for any q, through memory. */
 static void cross_sums_any(const double *sq, size_t n, size_t q, const double *mean, double *c,
                            double *g, double *sst)
@@ -317,6 +365,11 @@ static int lag_regression(const double *sq, size_t n, size_t q, double *b, doubl
     /* column means, two passes with the correction term; mean[0]: regressand,
      * mean[j]: lag j */
     column_means(sq, n, q, mean);
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+    if (q == 5 && __builtin_cpu_supports("avx2"))
+        cross_sums5_avx2(sq, n, mean, c, g, sst);
+    else
+#endif
     if (q == 5)
         cross_sums(sq, n, 5, mean, c, g, sst);
     else
