@@ -262,6 +262,35 @@ cross_sums5_avx2(const double *sq, size_t n, const double *mean, double *c, doub
     }
     *sst = y[1];
 }
+
+/* refine_sums for q = 5 in the same way: the residual formed term by term
+ * in the order of j, then one lane per sum of G. */
+__attribute__((target("avx2"))) static void
+refine_sums5_avx2(const double *sq, size_t n, const double *mean, const double *b, double *g)
+{
+    const v4d m0 = { mean[4], mean[3], mean[2], mean[1] };
+    v4d acc = { 0.0, 0.0, 0.0, 0.0 };
+    double g4 = 0.0;
+    for (size_t t = 5; t < n; t++) {
+        v4d v;
+        memcpy(&v, sq + t - 4, sizeof v);
+        v -= m0;                                    /* (dv3, dv2, dv1, dv0) */
+        double d4 = sq[t - 5] - mean[5], r = sq[t] - mean[0];
+        r -= b[1] * v[3];
+        r -= b[2] * v[2];
+        r -= b[3] * v[1];
+        r -= b[4] * v[0];
+        r -= b[5] * d4;
+        v4d sr = { r, r, r, r };
+        acc += v * sr;
+        g4 += d4 * r;
+    }
+    g[0] = acc[3];
+    g[1] = acc[2];
+    g[2] = acc[1];
+    g[3] = acc[0];
+    g[4] = g4;
+}
 #endif
 
 /* The same sums for any q, through memory. */
@@ -387,6 +416,11 @@ static int lag_regression(const double *sq, size_t n, size_t q, double *b, doubl
     if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, b + 1, 1) != 0)
         return HN_ESINGULAR;
     /* refinement: g = X'r of the centred residuals, solve, add */
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+    if (q == 5 && __builtin_cpu_supports("avx2"))
+        refine_sums5_avx2(sq, n, mean, b, g);
+    else
+#endif
     if (q == 5)
         refine_sums(sq, n, 5, mean, b, g);
     else
