@@ -127,7 +127,8 @@ static inline __attribute__((always_inline)) void
 column_sweep(const double *sq, size_t n, size_t q, size_t j0, const double *m, double *out,
              const size_t cnt)
 {
-    double acc[COLUMN_BLOCK], mm[COLUMN_BLOCK];
+    double acc[COLUMN_BLOCK] = { 0.0 }, mm[COLUMN_BLOCK] = { 0.0 };
+    #pragma GCC unroll 8
     for (size_t i = 0; i < cnt; i++) {
         acc[i] = 0.0;
         mm[i] = m ? m[i] : 0.0;
@@ -135,13 +136,16 @@ column_sweep(const double *sq, size_t n, size_t q, size_t j0, const double *m, d
     const double *base = sq - j0;
     if (m) {
         for (size_t t = q; t < n; t++)
+            #pragma GCC unroll 8
             for (size_t i = 0; i < cnt; i++)
                 acc[i] += base[t - i] - mm[i];
     } else {
         for (size_t t = q; t < n; t++)
+            #pragma GCC unroll 8
             for (size_t i = 0; i < cnt; i++)
                 acc[i] += base[t - i];
     }
+    #pragma GCC unroll 8
     for (size_t i = 0; i < cnt; i++)
         out[i] = acc[i];
 }
@@ -170,26 +174,137 @@ static void column_means(const double *sq, size_t n, size_t q, double *mean)
     }
 }
 
-/* Centred least squares of Y = SQ[q..n-1] on its Q lags and a constant:
- * the normal equations of the mean-removed lags (Cholesky, LAPACKE_dposv)
- * followed by one step of iterative refinement on the residuals, which
- * brings the coefficients to the accuracy of a QR solution for the mildly
- * conditioned designs that lags of squares give, at the cost of a few
- * passes over the data instead of a transposed copy and an unblocked QR of
- * it.  B (q+1): intercept, then the lag coefficients.  WORK: (q+1)(q+3)
- * doubles.  Returns HN_OK or HN_ESINGULAR (lags collinear). */
-static int lag_regression(const double *sq, size_t n, size_t q, double *b, double *work)
+/* Lags handled by the fused passes below with their sums in registers;
+ * more lags take the same sums through memory. */
+#define FUSED_MAX_Q 8
+
+/* One pass over t = q..n-1 forming, from the centred regressand dy_t =
+ * sq[t] - mean[0] and centred lags dv_j = sq[t-j-1] - mean[j+1]: the lower
+ * triangle of C = sum dv dv' (C[j q + k], k <= j), G = sum dv dy and
+ * SST = sum dy^2.  Each is a plain sum in the order of t, the operations
+ * those of one sum at a time; Q a constant after inlining. */
+static inline __attribute__((always_inline)) void
+cross_sums(const double *sq, size_t n, const size_t q, const double *mean, double *c, double *g,
+           double *sst)
 {
-    double *mean = work, *c = mean + q + 1, *g = c + q * q;
-    /* column means, two passes with the correction term; mean[0]: regressand,
-     * mean[j]: lag j */
-    column_means(sq, n, q, mean);
+    double cc[FUSED_MAX_Q * FUSED_MAX_Q] = { 0.0 }, gg[FUSED_MAX_Q] = { 0.0 }, s = 0.0;
+    double mm[FUSED_MAX_Q + 1];
+    #pragma GCC unroll 8
+    for (size_t j = 0; j <= q; j++)
+        mm[j] = mean[j];
+    for (size_t t = q; t < n; t++) {
+        double dy = sq[t] - mm[0], dv[FUSED_MAX_Q];
+        #pragma GCC unroll 8
+        for (size_t j = 0; j < q; j++)
+            dv[j] = sq[t - j - 1] - mm[j + 1];
+        s += dy * dy;
+        #pragma GCC unroll 8
+        for (size_t j = 0; j < q; j++) {
+            gg[j] += dv[j] * dy;
+            #pragma GCC unroll 8
+            for (size_t k = 0; k <= j; k++)
+                cc[j * q + k] += dv[j] * dv[k];
+        }
+    }
+    #pragma GCC unroll 8
+    for (size_t j = 0; j < q; j++) {
+        g[j] = gg[j];
+        #pragma GCC unroll 8
+        for (size_t k = 0; k <= j; k++)
+            c[j * q + k] = cc[j * q + k];
+    }
+    *sst = s;
+}
+
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+#include <string.h>
+#pragma GCC diagnostic ignored "-Wpsabi"   /* the vectors below stay inside one function */
+typedef double v4d __attribute__((vector_size(32)));
+
+/* cross_sums for q = 5 with AVX: each lane of a register is one of the
+ * sums, fed the same product in the same order of t (row j of C, g_j and
+ * SST; the upper triangle is formed too and dropped), so the digits are
+ * those of cross_sums. */
+__attribute__((target("avx2"))) static void
+cross_sums5_avx2(const double *sq, size_t n, const double *mean, double *c, double *g,
+                 double *sst)
+{
+    const v4d m0 = { mean[4], mean[3], mean[2], mean[1] }, z = { 0.0, 0.0, 0.0, 0.0 };
+    v4d a0 = z, a1 = z, a2 = z, a3 = z, a4 = z, b0 = z, b1 = z, b2 = z, b3 = z, b4 = z, y = z;
+    for (size_t t = 5; t < n; t++) {
+        v4d v;
+        memcpy(&v, sq + t - 4, sizeof v);
+        v -= m0;                                    /* (dv3, dv2, dv1, dv0) */
+        double d4 = sq[t - 5] - mean[5], dy = sq[t] - mean[0];
+        v4d w = { d4, dy, 0.0, 0.0 };
+        v4d s0 = { v[3], v[3], v[3], v[3] }, s1 = { v[2], v[2], v[2], v[2] };
+        v4d s2 = { v[1], v[1], v[1], v[1] }, s3 = { v[0], v[0], v[0], v[0] };
+        v4d s4 = { d4, d4, d4, d4 }, sy = { dy, dy, dy, dy };
+        a0 += s0 * v;
+        b0 += s0 * w;
+        a1 += s1 * v;
+        b1 += s1 * w;
+        a2 += s2 * v;
+        b2 += s2 * w;
+        a3 += s3 * v;
+        b3 += s3 * w;
+        a4 += s4 * v;
+        b4 += s4 * w;
+        y += sy * w;
+    }
+    const v4d A[5] = { a0, a1, a2, a3, a4 }, Bv[5] = { b0, b1, b2, b3, b4 };
+    for (size_t j = 0; j < 5; j++) {
+        for (size_t k = 0; k <= j && k < 4; k++)
+            c[j * 5 + k] = A[j][3 - k];
+        if (j == 4)
+            c[4 * 5 + 4] = Bv[4][0];
+        g[j] = Bv[j][1];
+    }
+    *sst = y[1];
+}
+
+/* refine_sums for q = 5 in the same way: the residual formed term by term
+ * in the order of j, then one lane per sum of G. */
+__attribute__((target("avx2"))) static void
+refine_sums5_avx2(const double *sq, size_t n, const double *mean, const double *b, double *g)
+{
+    const v4d m0 = { mean[4], mean[3], mean[2], mean[1] };
+    v4d acc = { 0.0, 0.0, 0.0, 0.0 };
+    double g4 = 0.0;
+    for (size_t t = 5; t < n; t++) {
+        v4d v;
+        memcpy(&v, sq + t - 4, sizeof v);
+        v -= m0;                                    /* (dv3, dv2, dv1, dv0) */
+        double d4 = sq[t - 5] - mean[5], r = sq[t] - mean[0];
+        r -= b[1] * v[3];
+        r -= b[2] * v[2];
+        r -= b[3] * v[1];
+        r -= b[4] * v[0];
+        r -= b[5] * d4;
+        v4d sr = { r, r, r, r };
+        acc += v * sr;
+        g4 += d4 * r;
+    }
+    g[0] = acc[3];
+    g[1] = acc[2];
+    g[2] = acc[1];
+    g[3] = acc[0];
+    g[4] = g4;
+}
+#endif
+
+/* The same sums for any q, through memory. */
+static void cross_sums_any(const double *sq, size_t n, size_t q, const double *mean, double *c,
+                           double *g, double *sst)
+{
+    double s = 0.0;
     for (size_t k = 0; k < q * q; k++)
         c[k] = 0.0;
     for (size_t j = 0; j < q; j++)
         g[j] = 0.0;
     for (size_t t = q; t < n; t++) {
         double dy = sq[t] - mean[0];
+        s += dy * dy;
         for (size_t j = 0; j < q; j++) {
             double dj = sq[t - j - 1] - mean[j + 1];
             g[j] += dj * dy;
@@ -197,6 +312,99 @@ static int lag_regression(const double *sq, size_t n, size_t q, double *b, doubl
                 c[j * q + k] += dj * (sq[t - k - 1] - mean[k + 1]);
         }
     }
+    *sst = s;
+}
+
+/* Refinement right-hand side: G = sum dv r over t, r = dy - sum_j B[j+1]
+ * dv_j the centred residual (j in order); plain sums in the order of t. */
+static inline __attribute__((always_inline)) void
+refine_sums(const double *sq, size_t n, const size_t q, const double *mean, const double *b,
+            double *g)
+{
+    double gg[FUSED_MAX_Q] = { 0.0 }, mm[FUSED_MAX_Q + 1], bb[FUSED_MAX_Q];
+    #pragma GCC unroll 8
+    for (size_t j = 0; j <= q; j++)
+        mm[j] = mean[j];
+    #pragma GCC unroll 8
+    for (size_t j = 0; j < q; j++)
+        bb[j] = b[j + 1];
+    for (size_t t = q; t < n; t++) {
+        double r = sq[t] - mm[0], dv[FUSED_MAX_Q];
+        #pragma GCC unroll 8
+        for (size_t j = 0; j < q; j++) {
+            dv[j] = sq[t - j - 1] - mm[j + 1];
+            r -= bb[j] * dv[j];
+        }
+        #pragma GCC unroll 8
+        for (size_t j = 0; j < q; j++)
+            gg[j] += dv[j] * r;
+    }
+    #pragma GCC unroll 8
+    for (size_t j = 0; j < q; j++)
+        g[j] = gg[j];
+}
+
+static void refine_sums_any(const double *sq, size_t n, size_t q, const double *mean,
+                            const double *b, double *g)
+{
+    for (size_t j = 0; j < q; j++)
+        g[j] = 0.0;
+    for (size_t t = q; t < n; t++) {
+        double r = sq[t] - mean[0];
+        for (size_t j = 0; j < q; j++)
+            r -= b[j + 1] * (sq[t - j - 1] - mean[j + 1]);
+        for (size_t j = 0; j < q; j++)
+            g[j] += (sq[t - j - 1] - mean[j + 1]) * r;
+    }
+}
+
+/* Sum of squared residuals e_t = sq[t] - (B[0] + sum_j B[j] sq[t-j]) over
+ * t = q..n-1, a plain sum in the order of t. */
+static inline __attribute__((always_inline)) double
+residual_ss(const double *sq, size_t n, const size_t q, const double *b)
+{
+    double ssr = 0.0;
+    for (size_t t = q; t < n; t++) {
+        double fit = b[0];
+        #pragma GCC unroll 8
+        for (size_t j = 1; j <= q; j++)
+            fit += b[j] * sq[t - j];
+        double e = sq[t] - fit;
+        ssr += e * e;
+    }
+    return ssr;
+}
+
+/* Centred least squares of Y = SQ[q..n-1] on its Q lags and a constant:
+ * the normal equations of the mean-removed lags (Cholesky, LAPACKE_dposv)
+ * followed by one step of iterative refinement on the residuals, which
+ * brings the coefficients to the accuracy of a QR solution for the mildly
+ * conditioned designs that lags of squares give, at the cost of a few
+ * passes over the data instead of a transposed copy and an unblocked QR of
+ * it.  The passes for the default 5 lags keep their sums in registers (the
+ * same operations in the same order as for any other q).  B (q+1):
+ * intercept, then the lag coefficients.  SST: the regressand's sum of
+ * squares about its mean.  WORK: (q+1)(q+3) doubles.  Returns HN_OK,
+ * HN_ECONST (regressand constant: SST not positive) or HN_ESINGULAR (lags
+ * collinear). */
+static int lag_regression(const double *sq, size_t n, size_t q, double *b, double *sst,
+                          double *work)
+{
+    double *mean = work, *c = mean + q + 1, *g = c + q * q;
+    /* column means, two passes with the correction term; mean[0]: regressand,
+     * mean[j]: lag j */
+    column_means(sq, n, q, mean);
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+    if (q == 5 && __builtin_cpu_supports("avx2"))
+        cross_sums5_avx2(sq, n, mean, c, g, sst);
+    else
+#endif
+    if (q == 5)
+        cross_sums(sq, n, 5, mean, c, g, sst);
+    else
+        cross_sums_any(sq, n, q, mean, c, g, sst);
+    if (!(*sst > 0.0))
+        return HN_ECONST;
     for (size_t j = 0; j < q; j++)
         for (size_t k = 0; k < j; k++)
             c[k * q + j] = c[j * q + k];
@@ -208,15 +416,15 @@ static int lag_regression(const double *sq, size_t n, size_t q, double *b, doubl
     if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, b + 1, 1) != 0)
         return HN_ESINGULAR;
     /* refinement: g = X'r of the centred residuals, solve, add */
-    for (size_t j = 0; j < q; j++)
-        g[j] = 0.0;
-    for (size_t t = q; t < n; t++) {
-        double r = sq[t] - mean[0];
-        for (size_t j = 0; j < q; j++)
-            r -= b[j + 1] * (sq[t - j - 1] - mean[j + 1]);
-        for (size_t j = 0; j < q; j++)
-            g[j] += (sq[t - j - 1] - mean[j + 1]) * r;
-    }
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+    if (q == 5 && __builtin_cpu_supports("avx2"))
+        refine_sums5_avx2(sq, n, mean, b, g);
+    else
+#endif
+    if (q == 5)
+        refine_sums(sq, n, 5, mean, b, g);
+    else
+        refine_sums_any(sq, n, q, mean, b, g);
     if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, g, 1) != 0)
         return HN_ESINGULAR;
     double icpt = mean[0];
@@ -268,35 +476,20 @@ int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
         diag_test_invalid(out, name, DIAG_VOLATILITY, "the squares are not computable");
         goto done;
     }
-    /* regressand mean and total sum of squares (two passes) */
-    double ym = 0.0, yc = 0.0, sst = 0.0;
-    for (size_t t = uq; t < n; t++)
-        ym += sq[t];
-    ym /= (double)rows;
-    for (size_t t = uq; t < n; t++)
-        yc += sq[t] - ym;
-    ym += yc / (double)rows;
-    for (size_t t = uq; t < n; t++)
-        sst += (sq[t] - ym) * (sq[t] - ym);
-    if (!(sst > 0.0)) {
-        rc = HN_ECONST;
+    /* The regressand's mean is column 0 of the regression's column means,
+     * and its sum of squares about that mean comes from the regression's
+     * cross-product pass. */
+    double sst = 0.0;
+    rc = lag_regression(sq, n, uq, b, &sst, work);
+    if (rc == HN_ECONST) {
         diag_test_invalid(out, name, DIAG_VOLATILITY, "the squared values are constant");
         goto done;
     }
-    rc = lag_regression(sq, n, uq, b, work);
     if (rc != HN_OK) {
         diag_test_invalid(out, name, DIAG_VOLATILITY, "the lagged squares are collinear");
         goto done;
     }
-    double ssr = 0.0;
-    for (size_t i = 0; i < rows; i++) {
-        size_t t = i + uq;
-        double fit = b[0];
-        for (size_t j = 1; j <= uq; j++)
-            fit += b[j] * sq[t - j];
-        double e = sq[t] - fit;
-        ssr += e * e;
-    }
+    double ssr = uq == 5 ? residual_ss(sq, n, 5, b) : residual_ss(sq, n, uq, b);
     double r2 = 1.0 - ssr / sst;
     if (r2 < 0.0)
         r2 = 0.0;

@@ -27,6 +27,7 @@
 #include <string.h>
 
 #include <gsl/gsl_cdf.h>
+#include <omp.h>
 
 /* Below this share of variance a significant effect is called negligible;
  * from this share up an effect is called sizeable. */
@@ -59,6 +60,9 @@ typedef struct {
      * read them (NULL: each such check computes its own) */
     const double *acf, *acf2;
     int nacf, nacf2;
+    /* x less its mean (diag_center_ss; NULL: none) and the mean and sd */
+    const double *d;
+    double mean, sd;
 } run_ctx;
 
 /* The argument shapes of the checks in diag_checks.h. */
@@ -76,6 +80,10 @@ typedef int (*fn_acf2_m)(const double *acf2, int nlags, size_t n, int m, double 
                          diag_test *out);
 typedef int (*fn_acf_plain)(const double *x, size_t n, const double *acf, int nlags,
                             double alpha, diag_test *out);
+/* The forms that take the battery's centred copy or its mean and sd. */
+typedef int (*fn_centred_acf)(const double *x, const double *d, size_t n, const double *acf,
+                              int nlags, double alpha, diag_test *out);
+typedef int (*fn_from_ms)(double mean, double sd, size_t n, double alpha, diag_test *out);
 
 typedef enum {
     ARG_PLAIN,      /* (x, n, alpha, out) */
@@ -103,26 +111,59 @@ static const struct {
         fn_acf2_m sq;
         fn_acf_plain plain;
     } a;
+    struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd */
+        fn_centred_acf dacf;
+        fn_moments d;
+        fn_from_ms ms;
+    } c;
 } CHECKS[] = {
-    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL } },
-    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf } },
-    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf } },
+    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL },
+                                    { .ms = diag_mean_ttest_from } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf },
+                                    { NULL, NULL, NULL } },
+    { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf },
+                                    { NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram },
-                                    { .plain = diag_cum_periodogram_acf } },
-    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf } },
-    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { NULL, NULL, NULL } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL } },
-    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL } },
+                                    { .plain = diag_cum_periodogram_acf },
+                                    { .dacf = diag_cum_periodogram_centred } },
+    { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf },
+                                    { NULL, NULL, NULL } },
+    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL } },
+    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL },
+                                    { .d = diag_jarque_bera_centred } },
 };
 #define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
+
+/* The table's entries by falling cost at large n, the order in which the
+ * tasks are started (results are still stored and reported in table
+ * order). */
+static const size_t COST_ORDER[] = { 5, 1, 8, 7, 2, 10, 0, 9, 3, 4, 6 };
+_Static_assert(sizeof COST_ORDER / sizeof COST_ORDER[0] == NCHECKS, "one entry per check");
+_Static_assert(NCHECKS <= DIAG_MAX_TESTS, "the battery's result holds every check");
+
+/* Below this length one thread does the battery: starting a team costs
+ * more than the checks gain. */
+#define PARALLEL_MIN_N 20000
 
 /* Run entry I of the table with the arguments its shape takes. */
 static int run_check(size_t i, const run_ctx *c, diag_test *t)
 {
     double skew, kurt;
+    if (CHECKS[i].c.dacf && c->d && c->acf)
+        return CHECKS[i].c.dacf(c->x, c->d, c->n, c->acf, c->nacf, c->alpha, t);
+    if (CHECKS[i].c.d && c->d)
+        return CHECKS[i].c.d(c->d, c->n, c->alpha, t, &skew, &kurt);
+    if (CHECKS[i].c.ms)
+        return CHECKS[i].c.ms(c->mean, c->sd, c->n, c->alpha, t);
     if (CHECKS[i].a.adj && c->acf)
         return CHECKS[i].a.adj(c->acf, c->nacf, c->n, c->m, c->df_adjust, c->alpha, t);
     if (CHECKS[i].a.sq && c->acf2)
@@ -301,6 +342,62 @@ static void write_summary(diag_battery *b, const diag_options *opt)
         memcpy(b->summary + len - 3, "...", 3);
 }
 
+/* The battery's ACF of X to TOP lags (from D and SS0 when given, the
+ * direct route's digits), its PACF and the Ljung-Box profile (df = k -
+ * DF_ADJUST) into OUT.  HN_OK or diag_acf's status. */
+static int battery_acf(const double *x, const double *d, double ss0, size_t n, size_t top,
+                       int df_adjust, diag_battery *out)
+{
+    int rc = d ? diag_acf_centred(d, n, ss0, (int)top, out->acf) : diag_acf(x, n, (int)top, out->acf);
+    if (rc != HN_OK)
+        return rc;
+    if (diag_pacf(out->acf, (int)top, out->pacf) != HN_OK) {
+        /* Left as NAN from the failing lag on (diag_pacf marks them). */
+    }
+    double dn = (double)n, q = 0.0;
+    for (size_t k = 1; k <= top; k++) {
+        q += out->acf[k - 1] * out->acf[k - 1] / (dn - (double)k);
+        out->profile_q[k - 1] = dn * (dn + 2.0) * q;
+        int df = (int)k - df_adjust;
+        out->profile_p[k - 1] = df >= 1 ? gsl_cdf_chisq_Q(out->profile_q[k - 1], (double)df) : NAN;
+    }
+    return HN_OK;
+}
+
+/* The ACF of x^2 to TOP2 lags into a new array *ACF2; NULL (and HN_OK)
+ * when a value is not finite or the squares are constant, so that each
+ * check then says why itself; HN_ENOMEM. */
+static int squares_acf(const double *x, size_t n, int top2, double **acf2)
+{
+    double *sq = malloc(n * sizeof *sq), *a = malloc((size_t)top2 * sizeof *a);
+    *acf2 = NULL;
+    if (!sq || !a) {
+        free(sq);
+        free(a);
+        return HN_ENOMEM;
+    }
+    int fin = 1;
+    for (size_t i = 0; i < n; i++) {
+        fin &= isfinite(x[i]) != 0;
+        sq[i] = x[i] * x[i];
+    }
+    /* centred in place: the digits of diag_acf on the squares, one copy fewer */
+    double ss0 = 0.0;
+    int rc = fin ? diag_center_ss(sq, n, sq, &ss0) : HN_ENUMERIC;
+    if (rc == HN_OK)
+        rc = diag_acf_is_direct(n, top2) ? diag_acf_centred(sq, n, ss0, top2, a) : HN_EINVAL;
+    free(sq);
+    if (rc == HN_ENOMEM) {
+        free(a);
+        return HN_ENOMEM;
+    }
+    if (rc != HN_OK)
+        free(a);
+    else
+        *acf2 = a;
+    return HN_OK;
+}
+
 int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_battery *out)
 {
     diag_options def = diag_default_options();
@@ -362,21 +459,6 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         diag_battery_free(out);
         return HN_ENOMEM;
     }
-    rc = diag_acf(x, n, (int)top, out->acf);
-    if (rc != HN_OK) {
-        diag_battery_free(out);
-        return rc;
-    }
-    if (diag_pacf(out->acf, (int)top, out->pacf) != HN_OK) {
-        /* Left as NAN from the failing lag on (diag_pacf marks them). */
-    }
-    double dn = (double)n, q = 0.0;
-    for (size_t k = 1; k <= top; k++) {
-        q += out->acf[k - 1] * out->acf[k - 1] / (dn - (double)k);
-        out->profile_q[k - 1] = dn * (dn + 2.0) * q;
-        int df = (int)k - opt->df_adjust;
-        out->profile_p[k - 1] = df >= 1 ? gsl_cdf_chisq_Q(out->profile_q[k - 1], (double)df) : NAN;
-    }
 
     /* The autocorrelations of x (above) and of x^2, once for every check that
      * reads them, where diag_acf takes its direct route for all of them (so
@@ -384,35 +466,64 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
     int order = diag_share_order(n);
     int top2 = out->m > order ? out->m : order;
     int share_x = diag_acf_is_direct(n, (int)top);
-    double *sq = NULL, *acf2 = NULL;
-    if (share_x && (size_t)top2 <= n - 1 && diag_acf_is_direct(n, top2)) {
-        sq = malloc(n * sizeof *sq);
-        acf2 = malloc((size_t)top2 * sizeof *acf2);
-        if (!sq || !acf2) {
-            free(sq);
-            free(acf2);
-            diag_battery_free(out);
-            return HN_ENOMEM;
-        }
-        int fin = 1;
-        for (size_t i = 0; i < n; i++) {
-            fin &= isfinite(x[i]) != 0;
-            sq[i] = x[i] * x[i];
-        }
-        if (!fin || diag_acf(sq, n, top2, acf2) != HN_OK) {
-            free(acf2);               /* each check then says why itself */
-            acf2 = NULL;
-        }
-        free(sq);
-    }
+    int want2 = share_x && (size_t)top2 <= n - 1 && diag_acf_is_direct(n, top2);
 
-    /* The checks. */
+    /* The checks are independent of one another: tasks on the threads of
+     * one team, unless the battery already runs inside a parallel region
+     * (scan, batch) or the series is too short to gain; each result lands
+     * in its own slot, so the order and digits are those of one thread. */
+    /* On the direct route the series is centred once for the ACF, the
+     * cumulative periodogram and Jarque-Bera (each would form the same copy). */
+    double *dev = share_x ? malloc(n * sizeof *dev) : NULL, ss0 = 0.0;
+    if (share_x && !dev) {
+        diag_battery_free(out);
+        return HN_ENOMEM;
+    }
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
-                    share_x ? out->acf : NULL, acf2, (int)top, top2 };
-    for (size_t i = 0; i < NCHECKS && out->ntests < DIAG_MAX_TESTS; i++) {
-        diag_test *t = &out->tests[out->ntests++];
-        rc = run_check(i, &ctx, t);
-        if (rc == HN_ENOMEM) {
+                    share_x ? out->acf : NULL, NULL, (int)top, top2, NULL, out->mean, out->sd };
+    int rc_dev = HN_OK, rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
+    double *acf2 = NULL;
+    int par = !omp_in_parallel() && n >= PARALLEL_MIN_N;
+#pragma omp parallel if (par)
+#pragma omp single
+    {
+#pragma omp task shared(rc_dev, dev, ss0, ctx) depend(out: rc_dev)
+        if (dev) {
+            rc_dev = diag_center_ss(x, n, dev, &ss0);
+            ctx.d = rc_dev == HN_OK ? dev : NULL;
+        }
+#pragma omp task shared(rc_acf, rc_dev, out, ctx, ss0) depend(in: rc_dev) depend(out: rc_acf)
+        rc_acf = rc_dev == HN_OK ? battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out) : rc_dev;
+#pragma omp task shared(rc_acf2, acf2, ctx) depend(out: rc_acf2)
+        {
+            rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2) : HN_OK;
+            ctx.acf2 = acf2;
+        }
+        for (size_t k = 0; k < NCHECKS; k++) {
+            size_t i = COST_ORDER[k];
+            if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
+#pragma omp task shared(ctx, out, rcs, rc_acf, rc_acf2) depend(in: rc_acf, rc_acf2)
+                rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
+            } else if (CHECKS[i].c.d) {
+#pragma omp task shared(ctx, out, rcs, rc_dev) depend(in: rc_dev)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            } else {
+#pragma omp task shared(ctx, out, rcs)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            }
+        }
+    }
+    free(dev);
+    ctx.d = NULL;
+    if (rc_acf != HN_OK || rc_acf2 == HN_ENOMEM) {
+        free(acf2);
+        diag_battery_free(out);
+        return rc_acf != HN_OK ? rc_acf : HN_ENOMEM;
+    }
+    out->ntests = (int)NCHECKS;
+    for (size_t i = 0; i < NCHECKS; i++) {
+        diag_test *t = &out->tests[i];
+        if (rcs[i] == HN_ENOMEM) {
             free(acf2);
             diag_battery_free(out);
             return HN_ENOMEM;

@@ -11,6 +11,9 @@
 
 /* --- mean zero, serial correlation (diag_portmanteau.c, diag_stats.c) --- */
 int diag_mean_ttest(const double *x, size_t n, double alpha, diag_test *out);
+/* The same from the mean and sd (divisor n-1) of the N values, as
+ * diag_mean_sd gives them. */
+int diag_mean_ttest_from(double mean, double sd, size_t n, double alpha, diag_test *out);
 /* Ljung-Box / Box-Pierce on ACF lags 1..m with df = m - df_adjust. */
 int diag_ljung_box(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out);
 int diag_box_pierce(const double *x, size_t n, int m, int df_adjust, double alpha, diag_test *out);
@@ -29,6 +32,10 @@ int diag_box_pierce_acf(const double *acf, int nlags, size_t n, int m, int df_ad
                         double alpha, diag_test *out);
 int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int nlags,
                              double alpha, diag_test *out);
+/* The same with D[0..n-1], X less its mean as diag_center gives it (only
+ * read), in place of its own centred copy. */
+int diag_cum_periodogram_centred(const double *x, const double *d, size_t n, const double *acf,
+                                 int nlags, double alpha, diag_test *out);
 
 /* --- constant variance: global against local (diag_variance.c) --- */
 /* Equality of block variances (Brown-Forsythe: Levene on |x - block median|)
@@ -62,5 +69,8 @@ int diag_turning_points(const double *x, size_t n, double alpha, diag_test *out)
 /* Jarque-Bera with biased (divisor n) moments; also skewness and excess kurtosis. */
 int diag_jarque_bera(const double *x, size_t n, double alpha, diag_test *out,
                      double *skewness, double *excess_kurtosis);
+/* The same from D[0..n-1], X less its mean as diag_center gives it. */
+int diag_jarque_bera_centred(const double *d, size_t n, double alpha, diag_test *out,
+                             double *skewness, double *excess_kurtosis);
 
 #endif

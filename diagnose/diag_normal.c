@@ -7,6 +7,7 @@
 
 #include "diag_checks.h"
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
 
 /* Jarque-Bera test with the biased (divisor n) central moments
@@ -15,48 +16,17 @@
  * freedom (asymptotic; conservative or liberal in small samples, said in
  * detail when n < 100).  SKEWNESS and EXCESS_KURTOSIS (K - 3) may be NULL.
  * The deviations come from diag_center (accurate even for a large mean);
- * each moment is a compensated sum.  OUT->effect is the excess kurtosis.
+ * the moments are compensated sums formed in one pass.  OUT->effect is the excess kurtosis.
  * Returns HN_OK; HN_EINVAL; HN_ESHORT (n < 8); HN_ECONST (all values equal);
  * HN_ENUMERIC; HN_ENOMEM.  On failure OUT is invalid and the moments NAN. */
-int diag_jarque_bera(const double *x, size_t n, double alpha, diag_test *out,
-                     double *skewness, double *excess_kurtosis)
+/* Jarque-Bera from the deviations D (x less its mean, as diag_center). */
+static int jarque_bera_centred(const double *d, size_t n, double alpha, diag_test *out,
+                               double *skewness, double *excess_kurtosis)
 {
     const char *name = "jarque-bera";
-    if (skewness)
-        *skewness = NAN;
-    if (excess_kurtosis)
-        *excess_kurtosis = NAN;
-    if (!x || !(alpha > 0.0 && alpha < 1.0)) {
-        diag_test_invalid(out, name, DIAG_NORMAL, "needs data and 0 < alpha < 1");
-        return HN_EINVAL;
-    }
-    if (n < 8) {
-        diag_test_invalid(out, name, DIAG_NORMAL, "too few observations (8 needed)");
-        return HN_ESHORT;
-    }
-    double *d = malloc(n * sizeof *d);
-    if (!d) {
-        diag_test_invalid(out, name, DIAG_NORMAL, "out of memory");
-        return HN_ENOMEM;
-    }
-    int rc = diag_center(x, n, d);
-    if (rc != HN_OK) {
-        free(d);
-        diag_test_invalid(out, name, DIAG_NORMAL, "a value is not finite");
-        return rc;
-    }
-    /* compensated sums of d^2, d^3, d^4 */
-    double s[3] = {0.0, 0.0, 0.0}, c[3] = {0.0, 0.0, 0.0};
-    for (size_t i = 0; i < n; i++) {
-        double p2 = d[i] * d[i];
-        double v[3] = {p2, p2 * d[i], p2 * p2};
-        for (int k = 0; k < 3; k++) {
-            double y = v[k] - c[k], t = s[k] + y;
-            c[k] = (t - s[k]) - y;
-            s[k] = t;
-        }
-    }
-    free(d);
+    /* compensated sums of d^2, d^3, d^4 (diag_sum.h), one pass */
+    double s[3];
+    diag_sum_moments(d, n, s);
     double dn = (double)n;
     double m2 = s[0] / dn, m3 = s[1] / dn, m4 = s[2] / dn;
     if (!(m2 > 0.0)) {
@@ -87,4 +57,56 @@ int diag_jarque_bera(const double *x, size_t n, double alpha, diag_test *out,
              "skewness %.3f, excess kurtosis %.3f (moments with divisor n)%s", S, K - 3.0,
              n < 100 ? "; chi-square(2) reference is rough for n < 100" : "");
     return HN_OK;
+}
+
+/* Argument checks shared by both entry points; HN_OK or OUT marked invalid. */
+static int jb_args(const double *x, size_t n, double alpha, diag_test *out, double *skewness,
+                   double *excess_kurtosis)
+{
+    const char *name = "jarque-bera";
+    if (skewness)
+        *skewness = NAN;
+    if (excess_kurtosis)
+        *excess_kurtosis = NAN;
+    if (!x || !(alpha > 0.0 && alpha < 1.0)) {
+        diag_test_invalid(out, name, DIAG_NORMAL, "needs data and 0 < alpha < 1");
+        return HN_EINVAL;
+    }
+    if (n < 8) {
+        diag_test_invalid(out, name, DIAG_NORMAL, "too few observations (8 needed)");
+        return HN_ESHORT;
+    }
+    return HN_OK;
+}
+
+int diag_jarque_bera(const double *x, size_t n, double alpha, diag_test *out,
+                     double *skewness, double *excess_kurtosis)
+{
+    const char *name = "jarque-bera";
+    int rc = jb_args(x, n, alpha, out, skewness, excess_kurtosis);
+    if (rc != HN_OK)
+        return rc;
+    double *d = malloc(n * sizeof *d);
+    if (!d) {
+        diag_test_invalid(out, name, DIAG_NORMAL, "out of memory");
+        return HN_ENOMEM;
+    }
+    rc = diag_center(x, n, d);
+    if (rc != HN_OK) {
+        free(d);
+        diag_test_invalid(out, name, DIAG_NORMAL, "a value is not finite");
+        return rc;
+    }
+    rc = jarque_bera_centred(d, n, alpha, out, skewness, excess_kurtosis);
+    free(d);
+    return rc;
+}
+
+int diag_jarque_bera_centred(const double *d, size_t n, double alpha, diag_test *out,
+                             double *skewness, double *excess_kurtosis)
+{
+    int rc = jb_args(d, n, alpha, out, skewness, excess_kurtosis);
+    if (rc != HN_OK)
+        return rc;
+    return jarque_bera_centred(d, n, alpha, out, skewness, excess_kurtosis);
 }

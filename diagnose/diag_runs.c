@@ -8,7 +8,12 @@
 
 #include "diag_checks.h"
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
+
+/* Two doubles and two 64-bit masks (GCC vector extension). */
+typedef double v2d __attribute__((vector_size(16)));
+typedef long long v2l __attribute__((vector_size(16)));
 
 /* Wald-Wolfowitz runs test about the median.  Values above the median are
  * coded +, below -, values equal to the median are dropped; R is the number
@@ -32,35 +37,27 @@ int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out)
         diag_test_invalid(out, name, DIAG_RANDOM, "too few observations");
         return HN_ESHORT;
     }
-    double *s = malloc(n * sizeof *s);
-    if (!s) {
+    if (!diag_all_finite(x, n)) {
+        diag_test_invalid(out, name, DIAG_RANDOM, "a value is not finite");
+        return HN_ENUMERIC;
+    }
+    double med;
+    if (diag_median(x, n, &med) != HN_OK) {
         diag_test_invalid(out, name, DIAG_RANDOM, "out of memory");
         return HN_ENOMEM;
     }
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(x[i])) {
-            free(s);
-            diag_test_invalid(out, name, DIAG_RANDOM, "a value is not finite");
-            return HN_ENUMERIC;
-        }
-    }
-    memcpy(s, x, n * sizeof *x);
-    double med = diag_median_inplace(s, n);
-    free(s);
 
+    /* Signs and runs counted without branches (the signs of residuals are
+     * as unpredictable as coin tosses); a value equal to the median keeps
+     * the previous sign for the run count. */
     size_t n1 = 0, n2 = 0, runs = 0;
     int prev = 0;
     for (size_t i = 0; i < n; i++) {
-        int sign = x[i] > med ? 1 : x[i] < med ? -1 : 0;
-        if (sign == 0)
-            continue;
-        if (sign > 0)
-            n1++;
-        else
-            n2++;
-        if (sign != prev)
-            runs++;
-        prev = sign;
+        int sign = (x[i] > med) - (x[i] < med);
+        n1 += sign > 0;
+        n2 += sign < 0;
+        runs += (sign != 0) & (sign != prev);
+        prev = sign != 0 ? sign : prev;
     }
     if (n1 < 2 || n2 < 2) {
         diag_test_invalid(out, name, DIAG_RANDOM, "too few values on one side of the median");
@@ -97,19 +94,27 @@ int diag_turning_points(const double *x, size_t n, double alpha, diag_test *out)
         diag_test_invalid(out, name, DIAG_RANDOM, "too few observations (7 needed)");
         return HN_ESHORT;
     }
-    size_t tp = 0, ties = 0;
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(x[i])) {
-            diag_test_invalid(out, name, DIAG_RANDOM, "a value is not finite");
-            return HN_ENUMERIC;
-        }
+    if (!diag_all_finite(x, n)) {
+        diag_test_invalid(out, name, DIAG_RANDOM, "a value is not finite");
+        return HN_ENUMERIC;
     }
-    for (size_t i = 1; i + 1 < n; i++) {
+    /* counted without branches (whether a point turns is a coin toss), two
+     * points at a time: a true comparison is an all-ones lane, -1 */
+    v2l vtp = { 0, 0 }, vties = { 0, 0 };
+    size_t i = 1;
+    for (; i + 2 < n; i += 2) {
+        v2d l, c, r;
+        memcpy(&l, x + i - 1, sizeof l);
+        memcpy(&c, x + i, sizeof c);
+        memcpy(&r, x + i + 1, sizeof r);
+        vtp -= ((c > l) & (c > r)) | ((c < l) & (c < r));
+        vties -= (c == l) | (c == r);
+    }
+    size_t tp = (size_t)(vtp[0] + vtp[1]), ties = (size_t)(vties[0] + vties[1]);
+    for (; i + 1 < n; i++) {
         double l = x[i - 1], c = x[i], r = x[i + 1];
-        if ((c > l && c > r) || (c < l && c < r))
-            tp++;
-        if (c == l || c == r)
-            ties++;
+        tp += (size_t)(((c > l) & (c > r)) | ((c < l) & (c < r)));
+        ties += (size_t)((c == l) | (c == r));
     }
     double dn = (double)n;
     double mean = 2.0 * (dn - 2.0) / 3.0;

@@ -1,5 +1,6 @@
 /* diag_stats.c - accurate mean and sd, ACF by direct sums or FFT, PACF by Durbin-Levinson. */
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -9,44 +10,27 @@
 #include <gsl/gsl_fft_real.h>
 #include <gsl/gsl_fft_halfcomplex.h>
 
-/* Neumaier's compensated sum: the running sum S and the lost low-order part C. */
-typedef struct { double s, c; } ksum;
-
-static void ksum_add(ksum *k, double v)
-{
-    double t = k->s + v;
-    if (fabs(k->s) >= fabs(v))
-        k->c += (k->s - t) + v;
-    else
-        k->c += (v - t) + k->s;
-    k->s = t;
-}
-
-static double ksum_value(const ksum *k)
-{
-    return k->s + k->c;
-}
-
 /* Mean of X as a rounded part M0 plus a small correction C: m0 + c is the
- * mean to about twice double precision.  The deviations x_i - m0 are exact
- * when x_i and m0 lie within a factor of two of each other (Sterbenz), the
- * usual case for data whose spread is small against their level. */
-static int mean_parts(const double *x, size_t n, double *m0, double *c)
+ * mean to about twice double precision (the correction is the mean of the
+ * deviations from m0, a blocked compensated sum, diag_sum.h).  The
+ * deviations x_i - m0 are exact when x_i and m0 lie within a factor of two
+ * of each other (Sterbenz), the usual case for data whose spread is small
+ * against their level.  With SS, the same pass gives the sum of squares of
+ * the corrected deviations, sum ((x_i - m0) - c)^2 = S2 - c S1 with S1 and
+ * S2 the sums of the deviations from m0 and of their squares. */
+static int mean_parts(const double *x, size_t n, double *m0, double *c, double *ss)
 {
-    ksum s = { 0.0, 0.0 };
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(x[i]))
-            return HN_ENUMERIC;
-        ksum_add(&s, x[i]);
-    }
-    double m = ksum_value(&s) / (double)n;
-    ksum r = { 0.0, 0.0 };
-    for (size_t i = 0; i < n; i++)
-        ksum_add(&r, x[i] - m);
+    double s = diag_sum(x, n);
+    if (!isfinite(s))
+        return HN_ENUMERIC;   /* a non-finite value, or a sum beyond the double range */
+    double m = s / (double)n, s1, s2;
+    diag_sum_dev2(x, n, m, &s1, &s2);
     *m0 = m;
-    *c = ksum_value(&r) / (double)n;
+    *c = s1 / (double)n;
     if (!isfinite(*m0) || !isfinite(*c))
         return HN_ENUMERIC;
+    if (ss)
+        *ss = s2 - *c * s1;
     return HN_OK;
 }
 
@@ -55,7 +39,7 @@ int diag_center(const double *x, size_t n, double *d)
     double m0, c;
     if (n < 1)
         return HN_ESHORT;
-    int rc = mean_parts(x, n, &m0, &c);
+    int rc = mean_parts(x, n, &m0, &c, NULL);
     if (rc != HN_OK)
         return rc;
     for (size_t i = 0; i < n; i++)
@@ -63,69 +47,74 @@ int diag_center(const double *x, size_t n, double *d)
     return HN_OK;
 }
 
-/* Power of two by which X may be divided so that sums of its values and of
- * their squares cannot overflow: 1 for ordinary data, 2^-k (exact) when the
- * largest |x_i| is above 2^500. */
-static double safe_scale(const double *x, size_t n)
+static int all_finite(const double *x, size_t n)
 {
-    double mx = 0.0;
     for (size_t i = 0; i < n; i++)
-        if (fabs(x[i]) > mx)
-            mx = fabs(x[i]);
-    if (!(mx > 0x1p500))
-        return 1.0;
-    int e;
-    frexp(mx, &e);
-    return ldexp(1.0, -e);
+        if (!isfinite(x[i]))
+            return 0;
+    return 1;
 }
 
 int diag_mean_sd(const double *x, size_t n, double *mean, double *sd)
 {
-    double m0, c;
+    double m0, c, ss;
     if (n < 1 || (sd && n < 2))
         return HN_ESHORT;
-    for (size_t i = 0; i < n; i++)
-        if (!isfinite(x[i]))
+    /* Sums of values and of their squares cannot overflow below 2^500;
+     * above, work on x * 2^-e (an exact power-of-two scaling) and scale the
+     * results back. */
+    double mx = diag_max_abs(x, n);
+    if (mx > 0x1p500) {
+        if (!all_finite(x, n))
             return HN_ENUMERIC;
-    double k = safe_scale(x, n);
-    if (k != 1.0) {
-        /* Values near the top of the double range: work on x * k (an exact
-         * power-of-two scaling) and scale the results back. */
+        int e;
+        frexp(mx, &e);
+        double k = ldexp(1.0, -e);
         double *xs = malloc(n * sizeof *xs);
         if (!xs)
             return HN_ENOMEM;
         for (size_t i = 0; i < n; i++)
             xs[i] = x[i] * k;
-        double ms = 0.0, ss = 0.0;
-        int rc = diag_mean_sd(xs, n, mean ? &ms : NULL, sd ? &ss : NULL);
+        double ms = 0.0, sc = 0.0;
+        int rc = diag_mean_sd(xs, n, mean ? &ms : NULL, sd ? &sc : NULL);
         free(xs);
         if (rc != HN_OK)
             return rc;
         if (mean)
             *mean = ms / k;
         if (sd) {
-            *sd = ss / k;
+            *sd = sc / k;
             if (!isfinite(*sd))
                 return HN_ENUMERIC;
         }
         return HN_OK;
     }
-    int rc = mean_parts(x, n, &m0, &c);
+    int rc = mean_parts(x, n, &m0, &c, sd ? &ss : NULL);
     if (rc != HN_OK)
         return rc;
     if (mean)
         *mean = m0 + c;
     if (sd) {
-        ksum ss = { 0.0, 0.0 };
-        for (size_t i = 0; i < n; i++) {
-            double d = (x[i] - m0) - c;
-            ksum_add(&ss, d * d);
-        }
-        double v = ksum_value(&ss) / (double)(n - 1);
+        double v = ss / (double)(n - 1);
         if (!isfinite(v))
             return HN_ENUMERIC;
-        *sd = sqrt(v);
+        *sd = sqrt(v > 0.0 ? v : 0.0);
     }
+    return HN_OK;
+}
+
+int diag_center_ss(const double *x, size_t n, double *d, double *ss)
+{
+    double m0, c;
+    if (n < 1)
+        return HN_ESHORT;
+    int rc = mean_parts(x, n, &m0, &c, NULL);
+    if (rc != HN_OK)
+        return rc;
+    double v = diag_sum_center(x, n, m0, c, d);
+    if (!isfinite(v))
+        return HN_ENUMERIC;
+    *ss = v;
     return HN_OK;
 }
 
@@ -138,65 +127,57 @@ static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, doub
         return HN_ESHORT;
     if (maxlag < 1 || (size_t)maxlag > n - 1)
         return HN_EINVAL;
-    double *d = malloc(n * sizeof *d);
+    double *d = malloc(n * sizeof *d), v;
     if (!d)
         return HN_ENOMEM;
-    int rc = diag_center(x, n, d);
+    int rc = diag_center_ss(x, n, d, &v);
+    if (rc == HN_OK && v <= 0.0)
+        rc = HN_ECONST;
     if (rc != HN_OK) {
         free(d);
         return rc;
-    }
-    ksum s = { 0.0, 0.0 };
-    for (size_t i = 0; i < n; i++)
-        ksum_add(&s, d[i] * d[i]);
-    double v = ksum_value(&s);
-    if (!isfinite(v)) {
-        free(d);
-        return HN_ENUMERIC;
-    }
-    if (v <= 0.0) {
-        free(d);
-        return HN_ECONST;
     }
     *dev = d;
     *ss0 = v;
     return HN_OK;
 }
 
-/* sum_{t=k}^{n-1} d_t d_{t-k}: plain sums over blocks of 64 terms (four
- * interleaved partial sums of 16 terms each), and the block sums added with
- * compensation (Neumaier).  The error is that of summing 16 terms plus a
- * compensated sum of the blocks, far below the digits the ACF is quoted to,
- * at under half the cost of compensating every term. */
-static double lag_product_sum(const double *d, size_t n, size_t k)
+/* Lags 1..MAXLAG of the centred D with lag-0 sum SS0. */
+static void acf_sums(const double *d, size_t n, double ss0, int maxlag, double *acf)
 {
-    ksum tot = { 0.0, 0.0 };
-    size_t t = k;
-    for (; t + 64 <= n; t += 64) {
-        double a = 0.0, b = 0.0, c = 0.0, e = 0.0;
-        const double *p = d + t, *q = d + t - k;
-        for (size_t i = 0; i < 64; i += 4) {
-            a += p[i] * q[i];
-            b += p[i + 1] * q[i + 1];
-            c += p[i + 2] * q[i + 2];
-            e += p[i + 3] * q[i + 3];
-        }
-        ksum_add(&tot, (a + b) + (c + e));
+    if (maxlag <= DIAG_SUM_MAXLAG) {
+        diag_sum_lagged(d, n, maxlag, acf);
+        for (int k = 0; k < maxlag; k++)
+            acf[k] /= ss0;
+    } else {
+        for (int k = 1; k <= maxlag; k++)
+            acf[k - 1] = diag_sum_dot(d + k, d, n - (size_t)k) / ss0;
     }
-    for (; t < n; t++)
-        ksum_add(&tot, d[t] * d[t - k]);
-    return ksum_value(&tot);
 }
 
+/* The lagged products sum_{t=k}^{n-1} d_t d_{t-k} are blocked compensated
+ * sums (diag_sum.h); all lags are formed in one cache-blocked sweep, each
+ * with the digits of its own pass. */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf)
 {
     double *d, ss0;
     int rc = acf_prepare(x, n, maxlag, &d, &ss0);
     if (rc != HN_OK)
         return rc;
-    for (int k = 1; k <= maxlag; k++)
-        acf[k - 1] = lag_product_sum(d, n, (size_t)k) / ss0;
+    acf_sums(d, n, ss0, maxlag, acf);
     free(d);
+    return HN_OK;
+}
+
+int diag_acf_centred(const double *d, size_t n, double ss0, int maxlag, double *acf)
+{
+    if (n < 2)
+        return HN_ESHORT;
+    if (maxlag < 1 || (size_t)maxlag > n - 1)
+        return HN_EINVAL;
+    if (!(ss0 > 0.0))
+        return HN_ECONST;
+    acf_sums(d, n, ss0, maxlag, acf);
     return HN_OK;
 }
 
@@ -372,4 +353,90 @@ double diag_median_inplace(double *a, size_t n)
         if (a[i] < hi)
             hi = a[i];
     return 0.5 * (lo + hi);
+}
+
+/* Below this length the median is a selection on a copy. */
+#define MEDIAN_DIRECT_N 4096
+/* Values filtered per check of the buffer's room. */
+#define MEDIAN_CHUNK 1024
+
+/* Median by a sample (in the manner of Floyd and Rivest): from about n/64
+ * values spread over A, two bounds whose ranks in the sample enclose the
+ * median's with a margin of 4 sample standard deviations; one branch-free
+ * pass counts the values below the lower bound and copies those between
+ * the bounds (about a tenth of them), and a selection in that copy finds
+ * the middle order statistics, the values a full sort would give.  When the
+ * bounds miss (rare: the sample only affects the speed), or the copy
+ * outgrows its room, the selection runs on a copy of all of A. */
+int diag_median(const double *a, size_t n, double *med)
+{
+    if (n < 1)
+        return HN_ESHORT;
+    size_t k1 = (n - 1) / 2, k2 = n / 2;
+    if (n >= MEDIAN_DIRECT_N) {
+        size_t ns = n / 64, step = n / ns;
+        double g = 4.0 * sqrt((double)ns) / 2.0 + 2.0;   /* 4 sd of a sample rank near the middle */
+        size_t cap = (size_t)((2.0 * g / (double)ns + 0.02) * (double)n) + 2 * MEDIAN_CHUNK;
+        double *smp = malloc(ns * sizeof *smp), *buf = malloc(cap * sizeof *buf);
+        int rc = HN_ENOMEM, done = 0;
+        if (smp && buf) {
+            rc = HN_OK;
+            /* one value from each stretch of STEP, at a position that
+             * wanders within it (fixed sequence: reproducible) */
+            unsigned long long state = 0x9e3779b97f4a7c15ULL;
+            for (size_t i = 0; i < ns; i++) {
+                state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+                smp[i] = a[i * step + (size_t)((state >> 33) % step)];
+            }
+            double c = (double)k1 / (double)n * (double)ns;
+            long rl = (long)floor(c - g), rh = (long)ceil(c + g);
+            if (rl < 0)
+                rl = 0;
+            if (rh > (long)ns - 1)
+                rh = (long)ns - 1;
+            double lo = select_kth(smp, ns, (size_t)rl);
+            double hi = select_kth(smp + rl, ns - (size_t)rl, (size_t)(rh - rl));
+            size_t below = 0, m = 0, i = 0;
+            int room = 1;
+            while (i < n && room) {
+                size_t e = i + MEDIAN_CHUNK < n ? i + MEDIAN_CHUNK : n;
+                for (; i < e; i++) {
+                    double v = a[i];
+                    below += v < lo;
+                    buf[m] = v;
+                    m += (v >= lo) & (v <= hi);
+                }
+                room = m + MEDIAN_CHUNK <= cap;
+            }
+            if (room && below <= k1 && k2 < below + m) {
+                double x1 = select_kth(buf, m, k1 - below), x2 = x1;
+                if (k2 != k1) {
+                    /* the next order statistic: the least value above position k1 */
+                    x2 = buf[k1 - below + 1];
+                    for (size_t j = k1 - below + 2; j < m; j++)
+                        if (buf[j] < x2)
+                            x2 = buf[j];
+                }
+                /* + 0.0: a zero median prints as 0 whichever of the equal
+                 * zeros the selection met */
+                *med = (k2 == k1 ? x1 : 0.5 * (x1 + x2)) + 0.0;
+                done = 1;
+            }
+        }
+        free(smp);
+        if (done) {
+            free(buf);
+            return HN_OK;
+        }
+        free(buf);
+        if (rc != HN_OK)
+            return rc;
+    }
+    double *cp = malloc(n * sizeof *cp);
+    if (!cp)
+        return HN_ENOMEM;
+    memcpy(cp, a, n * sizeof *a);
+    *med = diag_median_inplace(cp, n) + 0.0;
+    free(cp);
+    return HN_OK;
 }

@@ -12,9 +12,9 @@
 #include <stddef.h>
 
 /* Mean and standard deviation (divisor n-1) of X[0..n-1].  The mean is found
- * to about double-double accuracy (compensated sum, then a second
- * compensated pass over the deviations that corrects it), and the sum of
- * squares is a compensated sum of those corrected deviations.  SD may be
+ * to about double-double accuracy (blocked sum, then a compensated pass over
+ * the deviations that corrects it, diag_sum.h), and the same pass gives the
+ * compensated sum of squares of the corrected deviations.  SD may be
  * NULL.  Series whose largest |x| is above 2^500 are first scaled by an
  * exact power of two, so values up to the largest double give finite
  * results.  Returns HN_OK; HN_ESHORT when n < 1 (n < 2 when SD is wanted);
@@ -27,6 +27,9 @@ int diag_mean_sd(const double *x, size_t n, double *mean, double *sd);
  * as the data allow even when |xbar| >> sd.  Returns HN_OK, HN_ESHORT when
  * n < 1, HN_ENUMERIC for a non-finite value. */
 int diag_center(const double *x, size_t n, double *d);
+/* The same deviations and, in the same pass, SS = sum_i D[i]^2 (compensated),
+ * exactly as diag_acf forms them.  HN_OK, HN_ESHORT, HN_ENUMERIC. */
+int diag_center_ss(const double *x, size_t n, double *d, double *ss);
 
 /* Autocorrelations r_1..r_maxlag of X into ACF[0..maxlag-1] (caller
  * allocates maxlag doubles).  diag_acf chooses the method by cost:
@@ -40,8 +43,13 @@ int diag_acf(const double *x, size_t n, int maxlag, double *acf);
  * The direct sum's lag k does not depend on maxlag, so on that route the
  * first k values of a longer ACF equal a shorter one's bit for bit. */
 int diag_acf_is_direct(size_t n, int maxlag);
-/* Direct lagged products with compensated sums: O(n maxlag). */
+/* Direct lagged products with blocked compensated sums, all lags in one
+ * cache-blocked sweep: O(n maxlag). */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf);
+/* The direct route from D and SS0 as diag_center_ss gives them (only read):
+ * the digits of diag_acf_direct on the original series.  HN_OK, HN_EINVAL,
+ * HN_ESHORT, HN_ECONST (ss0 not positive). */
+int diag_acf_centred(const double *d, size_t n, double ss0, int maxlag, double *acf);
 /* GSL radix-2 real FFT of the centred series zero-padded to the power of two
  * N >= 2n (so no circular wrap-around), inverse of the power spectrum:
  * O(N log N).  The lag-0 sum of squares is the compensated direct sum. */
@@ -76,5 +84,9 @@ double diag_kolmogorov_q(double l);
 /* Median of A[0..n-1] (n > 0) by selection in O(n) on average; A is
  * reordered. */
 double diag_median_inplace(double *a, size_t n);
+/* The same median of A[0..n-1], A only read (finite values; for long A a
+ * sampled pre-filter leaves a selection on a small copy).  HN_OK, HN_ESHORT
+ * (n < 1) or HN_ENOMEM. */
+int diag_median(const double *a, size_t n, double *med);
 
 #endif

@@ -8,65 +8,103 @@
 
 #include "diag_checks.h"
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
 
 /* Numerics.  Every sum of squares is taken about a centre computed first
  * (two passes), and all data are shifted by their first value before that,
  * so that data with a large common offset (NIST StRD SmLs07: 1e12 + 0.x)
  * keep the digits of their differences.  Each two-pass mean adds the mean of
- * the first-pass deviations as a correction. */
+ * the first-pass deviations as a correction; the second pass gives the sum
+ * of squares about the corrected mean too (blocked compensated sums,
+ * diag_sum.h). */
 
-/* Median of X[0..n-1] using SCRATCH (n doubles) for the sorted copy. */
+/* Two-pass mean of X[0..n-1] (n > 0) and, with SS, the sum of squared
+ * deviations from it: sum (x - m0)^2 - c S1 = sum (x - m)^2 for m = m0 + c,
+ * c = S1 / n the correction. */
+static double mean_ss(const double *x, size_t n, double *ss)
+{
+    double m0 = diag_sum(x, n) / (double)n, s1, s2;
+    diag_sum_dev2(x, n, m0, &s1, &s2);
+    double c = s1 / (double)n;
+    if (ss) {
+        double v = s2 - c * s1;
+        *ss = v < 0.0 ? 0.0 : v;   /* NaN (overflow) is passed on */
+    }
+    return m0 + c;
+}
+
+static double mean_of(const double *x, size_t n)
+{
+    return mean_ss(x, n, NULL);
+}
+
+/* Median of X[0..n-1] using SCRATCH (n doubles) for the reordered copy. */
 static double median_of(const double *x, size_t n, double *scratch)
 {
     memcpy(scratch, x, n * sizeof *x);
     return diag_median_inplace(scratch, n);
 }
 
-/* Two-pass mean of X[0..n-1] (n > 0). */
-static double mean_of(const double *x, size_t n)
+/* Each group's mean GM[g] and sum of squared deviations GS[g]. */
+static void block_moments(const double *d, const size_t *sizes, size_t k, double *gm, double *gs)
 {
-    double s = 0.0, c = 0.0;
-    for (size_t i = 0; i < n; i++)
-        s += x[i];
-    double m = s / (double)n;
-    for (size_t i = 0; i < n; i++)
-        c += x[i] - m;
-    return m + c / (double)n;
+    const double *p = d;
+    for (size_t g = 0; g < k; g++) {
+        gm[g] = mean_ss(p, sizes[g], &gs[g]);
+        p += sizes[g];
+    }
 }
 
 /* One-way ANOVA sums on D (already shifted), groups of SIZES.  Fills the
- * between and within sums of squares.  Requires every size > 0. */
-static void anova_sums(const double *d, const size_t *sizes, size_t k,
-                       double *ssb, double *ssw)
+ * between and within sums of squares and, when GM is not NULL, each
+ * group's mean GM[g] and sum of squares GS[g].  The grand mean is the
+ * size-weighted mean of the group means (compensated).  Requires every
+ * size > 0; HN_OK or HN_ENOMEM. */
+static int anova_sums(const double *d, const size_t *sizes, size_t k,
+                      double *ssb, double *ssw, double *gm, double *gs)
 {
+    double *own = NULL;
+    if (!gm) {
+        own = malloc(2 * k * sizeof *own);
+        if (!own)
+            return HN_ENOMEM;
+        gm = own;
+        gs = own + k;
+    }
     size_t ntot = 0;
-    for (size_t g = 0; g < k; g++)
-        ntot += sizes[g];
-    double grand = mean_of(d, ntot);
-    double b = 0.0, w = 0.0;
-    const double *p = d;
+    diag_ksum tot = { 0.0, 0.0 }, w = { 0.0, 0.0 };
+    block_moments(d, sizes, k, gm, gs);
     for (size_t g = 0; g < k; g++) {
-        double m = mean_of(p, sizes[g]);
-        double dm = m - grand;
+        diag_ksum_add(&tot, (double)sizes[g] * gm[g]);
+        diag_ksum_add(&w, gs[g]);
+        ntot += sizes[g];
+    }
+    double grand = diag_ksum_value(&tot) / (double)ntot, b = 0.0;
+    for (size_t g = 0; g < k; g++) {
+        double dm = gm[g] - grand;
         b += (double)sizes[g] * dm * dm;
-        for (size_t i = 0; i < sizes[g]; i++) {
-            double e = p[i] - m;
-            w += e * e;
-        }
-        p += sizes[g];
     }
     *ssb = b;
-    *ssw = w;
+    *ssw = diag_ksum_value(&w);
+    free(own);
+    return HN_OK;
 }
 
-/* F test from the sums; returns HN_ECONST when the within sum is zero. */
+/* F test from the sums; returns HN_ENUMERIC when a sum overflowed (values
+ * near the top of the double range) and HN_ECONST when the within sum is
+ * zero. */
 static int f_from_sums(double ssb, double ssw, size_t ntot, size_t k,
                        double *F, double *df1, double *df2, double *p)
 {
     double d1 = (double)(k - 1), d2 = (double)(ntot - k);
     *df1 = d1;
     *df2 = d2;
+    if (!isfinite(ssb) || !isfinite(ssw)) {
+        *F = NAN;
+        *p = NAN;
+        return HN_ENUMERIC;
+    }
     if (!(ssw > 0.0)) {
         *F = NAN;
         *p = NAN;
@@ -108,7 +146,8 @@ static double *shifted_copy(const double *x, size_t n)
  *   x: the groups one after another; sizes[g] > 0 observations in group g,
  *   ngroups >= 2, total > ngroups.  Outputs F = MSB/MSW, df1 = k-1,
  *   df2 = N-k, p = upper tail of F(df1, df2).  Returns HN_OK, HN_EINVAL,
- *   HN_ESHORT, HN_ECONST (all groups constant: F undefined) or HN_ENOMEM.
+ *   HN_ESHORT, HN_ECONST (all groups constant: F undefined), HN_ENUMERIC
+ *   (sums of squares beyond the double range) or HN_ENOMEM.
  *   Nothing is kept; outputs are NAN on failure. */
 int diag_anova_groups(const double *x, const size_t *sizes, size_t ngroups,
                       double *F, double *df1, double *df2, double *p)
@@ -124,19 +163,28 @@ int diag_anova_groups(const double *x, const size_t *sizes, size_t ngroups,
     if (!d)
         return HN_ENOMEM;
     double ssb, ssw;
-    anova_sums(d, sizes, ngroups, &ssb, &ssw);
+    rc = anova_sums(d, sizes, ngroups, &ssb, &ssw, NULL, NULL);
     free(d);
+    if (rc != HN_OK)
+        return rc;
     return f_from_sums(ssb, ssw, ntot, ngroups, F, df1, df2, p);
 }
 
-/* Absolute deviations from each group's median (or mean): Z (N doubles). */
+/* Absolute deviations from each group's median (or mean): Z (N doubles).
+ * HN_OK or HN_ENOMEM. */
 static int abs_deviations(const double *d, const size_t *sizes, size_t k,
-                          int median_centred, double *z, double *scratch)
+                          int median_centred, double *z)
 {
     const double *p = d;
     double *q = z;
     for (size_t g = 0; g < k; g++) {
-        double c = median_centred ? median_of(p, sizes[g], scratch) : mean_of(p, sizes[g]);
+        double c;
+        if (median_centred) {
+            if (diag_median(p, sizes[g], &c) != HN_OK)
+                return HN_ENOMEM;
+        } else {
+            c = mean_of(p, sizes[g]);
+        }
         for (size_t i = 0; i < sizes[g]; i++)
             q[i] = fabs(p[i] - c);
         p += sizes[g];
@@ -160,17 +208,20 @@ int diag_levene_groups(const double *x, const size_t *sizes, size_t ngroups, int
     if (rc != HN_OK)
         return rc;
     double *d = shifted_copy(x, ntot);
-    double *z = malloc(2 * ntot * sizeof *z);
+    double *z = malloc(ntot * sizeof *z);
     if (!d || !z) {
         free(d);
         free(z);
         return HN_ENOMEM;
     }
-    abs_deviations(d, sizes, ngroups, median_centred, z, z + ntot);
     double ssb, ssw;
-    anova_sums(z, sizes, ngroups, &ssb, &ssw);
+    rc = abs_deviations(d, sizes, ngroups, median_centred, z);
+    if (rc == HN_OK)
+        rc = anova_sums(z, sizes, ngroups, &ssb, &ssw, NULL, NULL);
     free(d);
     free(z);
+    if (rc != HN_OK)
+        return rc;
     return f_from_sums(ssb, ssw, ntot, ngroups, W, df1, df2, p);
 }
 
@@ -201,7 +252,8 @@ static void append(char *buf, size_t cap, const char *text)
 }
 
 /* Blocks whose mean (WHICH = 0) or sd (WHICH = 1) stands out, in words,
- * into DETAIL.  The global reference is taken robustly, so that one deviant
+ * into DETAIL, from the block means BM and sums of squared deviations BSS.
+ * The global reference is taken robustly, so that one deviant
  * block does not make every other block look deviant: the median of the
  * block means and the median of the block sds.  Rule, Bonferroni over the
  * NB blocks at ALPHA:
@@ -209,23 +261,16 @@ static void append(char *buf, size_t cap, const char *text)
  *         s_w the pooled within-block sd;
  *   sd:   (n_b - 1) s_b^2 / s_med^2 outside the chi-square(n_b - 1) quantiles
  *         alpha/(2 NB) and 1 - alpha/(2 NB), s_med the median block sd.
- * SCRATCH holds 3 NB doubles. */
-static void describe_blocks(const double *d, const size_t *sizes, size_t nb, size_t n,
-                            double alpha, int which, char *detail, size_t cap, double *scratch)
+ * SCRATCH holds 2 NB doubles. */
+static void describe_blocks(const double *bm, const double *bss, const size_t *sizes, size_t nb,
+                            size_t n, double alpha, int which, char *detail, size_t cap,
+                            double *scratch)
 {
-    double *bm = scratch, *bs = scratch + nb, *tmp = scratch + 2 * nb;
+    double *bs = scratch, *tmp = scratch + nb;
     double ssw = 0.0;
-    size_t start = 0;
     for (size_t b = 0; b < nb; b++) {
-        const double *p = d + start;
-        size_t m = sizes[b];
-        double v = 0.0;
-        bm[b] = mean_of(p, m);
-        for (size_t i = 0; i < m; i++)
-            v += (p[i] - bm[b]) * (p[i] - bm[b]);
-        ssw += v;
-        bs[b] = sqrt(v / (double)(m - 1));
-        start += m;
+        ssw += bss[b];
+        bs[b] = sqrt(bss[b] / (double)(sizes[b] - 1));
     }
     double sw = sqrt(ssw / (double)(n - nb));
     double mref = median_of(bm, nb, tmp), sref = median_of(bs, nb, tmp);
@@ -234,8 +279,7 @@ static void describe_blocks(const double *d, const size_t *sizes, size_t nb, siz
         ? "|block mean - median block mean| > z*pooled sd/sqrt(block n)"
         : "block variance outside chi-square band about the median block sd";
     char list[256] = "";
-    size_t flagged = 0;
-    start = 0;
+    size_t flagged = 0, start = 0;
     for (size_t b = 0; b < nb; b++) {
         size_t m = sizes[b];
         int out = 0;
@@ -281,8 +325,8 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
     }
     size_t *sizes = malloc(nblocks * sizeof *sizes);
     double *d = shifted_copy(x, n);
-    double *z = which ? malloc(2 * n * sizeof *z) : NULL;
-    double *scratch = malloc(3 * nblocks * sizeof *scratch);
+    double *z = which ? malloc(n * sizeof *z) : NULL;
+    double *scratch = malloc(4 * nblocks * sizeof *scratch);
     if (!sizes || !d || (which && !z) || !scratch) {
         free(sizes);
         free(d);
@@ -292,42 +336,54 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
         return HN_ENOMEM;
     }
     block_sizes(n, nblocks, sizes);
+    /* block means and sums of squares of the shifted data, for the detail
+     * and (Brown-Forsythe) the practical size */
+    double *bm = scratch, *bss = scratch + nblocks, *more = scratch + 2 * nblocks;
     double ssb, ssw, F, df1, df2, p;
+    int rc;
     if (which) {
-        abs_deviations(d, sizes, nblocks, 1, z, z + n);
-        anova_sums(z, sizes, nblocks, &ssb, &ssw);
+        block_moments(d, sizes, nblocks, bm, bss);
+        rc = abs_deviations(d, sizes, nblocks, 1, z);
+        if (rc == HN_OK)
+            rc = anova_sums(z, sizes, nblocks, &ssb, &ssw, NULL, NULL);
     } else {
-        anova_sums(d, sizes, nblocks, &ssb, &ssw);
+        rc = anova_sums(d, sizes, nblocks, &ssb, &ssw, bm, bss);
     }
-    int rc = f_from_sums(ssb, ssw, n, nblocks, &F, &df1, &df2, &p);
-    if (rc != HN_OK) {
+    if (rc == HN_ENOMEM) {
+        diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
+        free(sizes);
+        free(d);
+        free(z);
+        free(scratch);
+        return HN_ENOMEM;
+    }
+    rc = f_from_sums(ssb, ssw, n, nblocks, &F, &df1, &df2, &p);
+    if (rc == HN_ENUMERIC) {
+        diag_test_invalid(out, name, DIAG_VARIANCE,
+                          "the sums of squares overflow: values too large for the test");
+    } else if (rc != HN_OK) {
         diag_test_invalid(out, name, DIAG_VARIANCE, "the data are constant within every block");
     } else if (which) {
         /* practical size: largest over smallest block sd */
         double lo = INFINITY, hi = 0.0;
-        size_t start = 0;
         for (size_t b = 0; b < nblocks; b++) {
-            double m = mean_of(d + start, sizes[b]), v = 0.0;
-            for (size_t i = 0; i < sizes[b]; i++)
-                v += (d[start + i] - m) * (d[start + i] - m);
-            double sd = sqrt(v / (double)(sizes[b] - 1));
+            double sd = sqrt(bss[b] / (double)(sizes[b] - 1));
             lo = sd < lo ? sd : lo;
             hi = sd > hi ? sd : hi;
-            start += sizes[b];
         }
         diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, lo > 0.0 ? hi / lo : INFINITY,
              "largest over smallest block sd");
-        describe_blocks(d, sizes, nblocks, n, alpha, 1, out->detail, sizeof out->detail, scratch);
+        describe_blocks(bm, bss, sizes, nblocks, n, alpha, 1, out->detail, sizeof out->detail, more);
     } else {
         diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, ssb / (ssb + ssw),
              "share of variance explained by block means (eta squared)");
-        describe_blocks(d, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, scratch);
+        describe_blocks(bm, bss, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, more);
     }
     free(sizes);
     free(d);
     free(z);
     free(scratch);
-    return rc == HN_ECONST ? HN_ECONST : HN_OK;
+    return rc == HN_ECONST || rc == HN_ENUMERIC ? rc : HN_OK;
 }
 
 /* Brown-Forsythe test of equal variances over NBLOCKS consecutive blocks of
@@ -335,7 +391,8 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
  * statistic W ~ F(k-1, n-k), df = k-1 (df2 = n-k in detail's context),
  * effect = largest / smallest block sd; detail names the blocks whose sd
  * stands out (rule stated there and at describe_blocks).  Returns HN_OK, HN_EINVAL, HN_ESHORT
- * (fewer than 3 observations a block), HN_ECONST or HN_ENOMEM. */
+ * (fewer than 3 observations a block), HN_ECONST, HN_ENUMERIC (sums of
+ * squares overflow) or HN_ENOMEM. */
 int diag_brown_forsythe_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out)
 {
     return block_test(x, n, nblocks, alpha, out, 1);

@@ -2,7 +2,7 @@
 # Install the Debian packages that hone's build and tests need (run as root).
 set -e
 PKGS="build-essential pkg-config libgsl-dev liblapacke-dev libreadline-dev libcsv-dev
-      libssl-dev libcairo2-dev libcmocka-dev clang libclang-rt-14-dev python3-numpy python3-scipy chromium poppler-utils
+      libssl-dev libcairo2-dev libcmocka-dev libfftw3-dev clang libclang-rt-14-dev python3-numpy python3-scipy chromium poppler-utils
       parallel tmux valgrind"
 missing=""
 for p in $PKGS; do

@@ -4,6 +4,9 @@
 #include "diag_stats.h"
 #include "hn_status.h"
 
+#include <gsl/gsl_randist.h>
+#include <gsl/gsl_rng.h>
+
 #include <string.h>
 
 /* Read column COL of REL under the reference directory into *X. */
@@ -104,10 +107,52 @@ static void test_dmbp_squares(void **state)
     free(r);
 }
 
+/* The forms from the battery's shared pieces (centred copy, its sum of
+ * squares, mean and sd) report exactly what the X-taking forms report, on
+ * Gaussian data with a level and odd and even lengths (GSL mt19937 seed 9). */
+static void test_shared_pieces(void **state)
+{
+    (void)state;
+    const size_t ns[3] = { 1001, 4096, 50001 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 9UL);
+    for (int s = 0; s < 3; s++) {
+        size_t n = ns[s];
+        double *x = malloc(n * sizeof *x), *d = malloc(n * sizeof *d), ss0, mean, sd;
+        double acf[20], acf2[20];
+        assert_non_null(x);
+        assert_non_null(d);
+        for (size_t i = 0; i < n; i++)
+            x[i] = 100.0 + gsl_ran_gaussian(r, 1.0);
+        assert_int_equal(diag_center_ss(x, n, d, &ss0), HN_OK);
+        assert_int_equal(diag_acf_direct(x, n, 20, acf), HN_OK);
+        assert_int_equal(diag_acf_centred(d, n, ss0, 20, acf2), HN_OK);
+        assert_memory_equal(acf, acf2, sizeof acf);
+        diag_test a, b;
+        double sa, ka, sb, kb;
+        assert_int_equal(diag_cum_periodogram(x, n, 0.05, &a), HN_OK);
+        assert_int_equal(diag_cum_periodogram_centred(x, d, n, acf, 20, 0.05, &b), HN_OK);
+        same_test(&a, &b);
+        assert_int_equal(diag_jarque_bera(x, n, 0.05, &a, &sa, &ka), HN_OK);
+        assert_int_equal(diag_jarque_bera_centred(d, n, 0.05, &b, &sb, &kb), HN_OK);
+        same_test(&a, &b);
+        assert_memory_equal(&sa, &sb, sizeof sa);
+        assert_memory_equal(&ka, &kb, sizeof ka);
+        assert_int_equal(diag_mean_sd(x, n, &mean, &sd), HN_OK);
+        assert_int_equal(diag_mean_ttest(x, n, 0.05, &a), HN_OK);
+        assert_int_equal(diag_mean_ttest_from(mean, sd, n, 0.05, &b), HN_OK);
+        same_test(&a, &b);
+        free(x);
+        free(d);
+    }
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_series_f),
+        cmocka_unit_test(test_shared_pieces),
         cmocka_unit_test(test_dmbp_squares),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);

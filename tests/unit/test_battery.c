@@ -6,6 +6,7 @@
 #include "hn_status.h"
 
 #include <gsl/gsl_cdf.h>
+#include <omp.h>
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_randist.h>
 
@@ -362,10 +363,75 @@ static void test_sizeable_short(void **state)
     assert_true(found > 0);
 }
 
+/* Every number of a battery result (tests, ACF, PACF, profile, verdict). */
+static void same_battery(const diag_battery *a, const diag_battery *b)
+{
+    assert_int_equal(a->ntests, b->ntests);
+    for (int i = 0; i < a->ntests; i++) {
+        const diag_test *s = &a->tests[i], *t = &b->tests[i];
+        assert_string_equal(s->name, t->name);
+        assert_int_equal(s->valid, t->valid);
+        assert_memory_equal(&s->statistic, &t->statistic, sizeof s->statistic);
+        assert_memory_equal(&s->p, &t->p, sizeof s->p);
+        assert_memory_equal(&s->effect, &t->effect, sizeof s->effect);
+        assert_string_equal(s->detail, t->detail);
+    }
+    assert_memory_equal(a->acf, b->acf, (size_t)a->acf_lags * sizeof *a->acf);
+    assert_memory_equal(a->pacf, b->pacf, (size_t)a->acf_lags * sizeof *a->pacf);
+    assert_memory_equal(a->profile_q, b->profile_q, (size_t)a->acf_lags * sizeof *a->profile_q);
+    assert_memory_equal(a->crit_p, b->crit_p, sizeof a->crit_p);
+    assert_string_equal(a->summary, b->summary);
+}
+
+/* The checks run as tasks: one thread, two threads, and two batteries at
+ * once inside a parallel region (as scan and batch run them: no team of
+ * their own, FFTW's planner shared) give the same digits, on GARCH-like
+ * series of even and odd length above the threshold for a team. */
+static void test_threads_same_digits(void **state)
+{
+    (void)state;
+    const size_t ns[2] = { 60000, 60001 };
+    gsl_rng *r = rng_seeded(77UL);
+    double *x = malloc(60001 * sizeof *x), h = 1.0, e = 0.0;
+    assert_non_null(x);
+    for (size_t i = 0; i < 60001; i++) {
+        h = 0.05 + 0.1 * e * e + 0.85 * h;
+        e = sqrt(h) * gsl_ran_gaussian(r, 1.0);
+        x[i] = e;
+    }
+    diag_options opt = diag_default_options();
+    opt.lags = 20;
+    for (int s = 0; s < 2; s++) {
+        diag_battery one, two, in[2];
+        int saved = omp_get_max_threads();
+        omp_set_num_threads(1);
+        assert_int_equal(diag_battery_run(x, ns[s], &opt, &one), HN_OK);
+        omp_set_num_threads(2);
+        assert_int_equal(diag_battery_run(x, ns[s], &opt, &two), HN_OK);
+        int rc[2] = { -1, -1 };
+#pragma omp parallel for num_threads(2)
+        for (int k = 0; k < 2; k++)
+            rc[k] = diag_battery_run(x, ns[s], &opt, &in[k]);
+        omp_set_num_threads(saved);
+        assert_int_equal(rc[0], HN_OK);
+        assert_int_equal(rc[1], HN_OK);
+        same_battery(&one, &two);
+        same_battery(&one, &in[0]);
+        same_battery(&one, &in[1]);
+        diag_battery_free(&one);
+        diag_battery_free(&two);
+        diag_battery_free(&in[0]);
+        diag_battery_free(&in[1]);
+    }
+    free(x);
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_rules),
+        cmocka_unit_test(test_threads_same_digits),
         cmocka_unit_test(test_negligible),
         cmocka_unit_test(test_sizeable_short),
         cmocka_unit_test(test_power),

@@ -36,7 +36,8 @@ static void test_runs_median_by_selection(void **state)
         for (size_t i = 0; i < n; i++)
             x[i] = c[i] = round(10.0 * gsl_ran_gaussian(r, 1.0)) / 10.0;
         qsort(c, n, sizeof *c, cmp_double);
-        double med = n % 2 ? c[n / 2] : 0.5 * (c[n / 2 - 1] + c[n / 2]);
+        /* + 0.0: the median of data holding both zeros is printed as 0 */
+        double med = (n % 2 ? c[n / 2] : 0.5 * (c[n / 2 - 1] + c[n / 2])) + 0.0;
         size_t runs = 0;
         int prev = 0;
         for (size_t i = 0; i < n; i++) {

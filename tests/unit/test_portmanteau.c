@@ -1,6 +1,7 @@
 /* test_portmanteau.c - t-test, Ljung-Box, Box-Pierce, cumulative periodogram and their tail probabilities. */
 #include "testutil.h"
 #include "diag_checks.h"
+#include "diag_periodogram.h"
 #include "diag_stats.h"
 #include "hn_status.h"
 
@@ -293,21 +294,26 @@ static void test_detail(void **state)
     assert_true(strlen(d.detail) < sizeof d.detail - 1);
 }
 
-/* Every periodogram route (GSL mixed radix for n = 1000 = 2^3 5^3; the
- * chirp-z route for the primes n = 1009 and 4099; the half-length complex
- * transform for even n with a large prime factor, 2 x 1009, 4 x 251 and
- * 2 x 4099) against the defining sum
- * I_j = |sum_t d_t exp(-2 pi i j t / n)|^2 evaluated term by term here
- * (angles reduced mod n), on Gaussian data (GSL mt19937 seed 31).  The KS
- * distance must agree to 1e-10. */
+/* Every periodogram route (diag_periodogram.h: the half-length complex
+ * transform for every even n, here 1000 = 2^3 5^3, 2 x 1009, 4 x 251 and
+ * 2 x 4099; the real transform for odd n with small prime factors, 1001 =
+ * 7 11 13 and 2187 = 3^7; the chirp-z route for the primes 1009 and 4099)
+ * against the defining sum I_j = |sum_t d_t exp(-2 pi i j t / n)|^2
+ * evaluated term by term here (angles reduced mod n), on Gaussian data (GSL
+ * mt19937 seed 31).  The KS distance must agree to 1e-10, and each route
+ * must have been taken. */
 static void test_periodogram_routes(void **state)
 {
     (void)state;
-    const size_t ns[6] = { 1000, 1009, 4099, 2018, 1004, 8198 };
+    const size_t ns[8] = { 1000, 1009, 4099, 2018, 1004, 8198, 1001, 2187 };
+    int seen[3] = { 0, 0, 0 };
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 31UL);
-    for (int s = 0; s < 6; s++) {
+    for (int s = 0; s < 8; s++) {
         size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
+        int route = diag_periodogram_route(n);
+        assert_true(route >= 0 && route < 3);
+        seen[route] = 1;
         double *x = malloc(n * sizeof *x), *I = malloc(q * sizeof *I);
         assert_non_null(x);
         assert_non_null(I);
@@ -341,6 +347,7 @@ static void test_periodogram_routes(void **state)
         free(I);
     }
     gsl_rng_free(r);
+    assert_true(seen[0] && seen[1] && seen[2]);
 }
 
 int main(void)

@@ -1,6 +1,7 @@
 /* test_stats.c - mean, sd, ACF and PACF against NIST StRD, the e-Handbook Series F ACF and each other. */
 #include "testutil.h"
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
 
 #include <gsl/gsl_rng.h>
@@ -224,6 +225,98 @@ static void test_pacf_closed_forms(void **state)
     assert_int_equal(diag_pacf(acf, 3, pacf), HN_ENUMERIC);
 }
 
+/* The one-sweep lagged sums give, lag by lag, the digits of the lag's own
+ * blocked pass (so that a shorter ACF is the prefix of a longer one bit
+ * for bit), for lengths around the block and chunk sizes. */
+static void test_lagged_sweep(void **state)
+{
+    (void)state;
+    const size_t ns[7] = { 5, 63, 64, 65, 200, 4097, 70001 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 7UL);
+    double *d = malloc(70001 * sizeof *d), s[DIAG_SUM_MAXLAG];
+    assert_non_null(d);
+    for (size_t i = 0; i < 70001; i++)
+        d[i] = gsl_ran_gaussian(r, 1.0);
+    for (int a = 0; a < 7; a++) {
+        size_t n = ns[a];
+        int K = n - 1 < DIAG_SUM_MAXLAG ? (int)n - 1 : DIAG_SUM_MAXLAG;
+        diag_sum_lagged(d, n, K, s);
+        for (int k = 1; k <= K; k++)
+            assert_true(s[k - 1] == diag_sum_dot(d + k, d, n - (size_t)k));
+    }
+    free(d);
+    gsl_rng_free(r);
+}
+
+/* Rounded data: for 100001 integers (3 g rounded, g Gaussian) less their
+ * rounded mean, the terms repeat and their sum nearly cancels; the sums of
+ * the deviations and of their squares must match a long double sum of the
+ * same terms (plain partial sums of 16 such terms drift to about 1e-11
+ * here). */
+static void test_sums_rounded_data(void **state)
+{
+    (void)state;
+    const size_t n = 100001;
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 11UL);
+    double *x = malloc(n * sizeof *x);
+    assert_non_null(x);
+    for (size_t i = 0; i < n; i++)
+        x[i] = round(3.0 * gsl_ran_gaussian(r, 1.0));
+    double m = diag_sum(x, n) / (double)n, s1, s2;
+    long double l1 = 0.0L, l2 = 0.0L;
+    for (size_t i = 0; i < n; i++) {
+        double e = x[i] - m;
+        l1 += e;
+        l2 += (long double)(e * e);
+    }
+    diag_sum_dev2(x, n, m, &s1, &s2);
+    assert_true(fabs(s1 - (double)l1) <= 2e-13);   /* the long double sum is good to ~3e-14 */
+    assert_true(fabs(s2 - (double)l2) <= 1e-15 * (double)l2);
+    free(x);
+    gsl_rng_free(r);
+}
+
+static int cmp_dbl(const void *a, const void *b)
+{
+    double x = *(const double *)a, y = *(const double *)b;
+    return x < y ? -1 : x > y;
+}
+
+/* The sampled median equals the middle of a full sort, for lengths on both
+ * sides of the direct threshold and data that defeat a sample (sorted,
+ * reversed, few distinct values, constant, a spike of ties at the middle). */
+static void test_median_against_sort(void **state)
+{
+    (void)state;
+    const size_t ns[6] = { 7, 4095, 4096, 4097, 10000, 100001 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 3UL);
+    double *x = malloc(100001 * sizeof *x), *c = malloc(100001 * sizeof *c);
+    assert_non_null(x);
+    assert_non_null(c);
+    for (int a = 0; a < 6; a++) {
+        size_t n = ns[a];
+        for (int kind = 0; kind < 6; kind++) {
+            for (size_t i = 0; i < n; i++) {
+                double g = gsl_ran_gaussian(r, 1.0);
+                x[i] = kind == 0 ? g : kind == 1 ? (double)i : kind == 2 ? -(double)i
+                     : kind == 3 ? (double)(i % 7) : kind == 4 ? 2.5
+                     : (i % 3 ? 0.25 : g);
+            }
+            memcpy(c, x, n * sizeof *x);
+            qsort(c, n, sizeof *c, cmp_dbl);
+            double want = n % 2 ? c[n / 2] : 0.5 * (c[n / 2 - 1] + c[n / 2]), med;
+            assert_int_equal(diag_median(x, n, &med), HN_OK);
+            assert_true(med == want);
+        }
+    }
+    free(x);
+    free(c);
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -232,6 +325,9 @@ int main(void)
         cmocka_unit_test(test_direct_vs_fft),
         cmocka_unit_test(test_refusals),
         cmocka_unit_test(test_pacf_closed_forms),
+        cmocka_unit_test(test_lagged_sweep),
+        cmocka_unit_test(test_sums_rounded_data),
+        cmocka_unit_test(test_median_against_sort),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -1,0 +1,260 @@
+/* diag_periodogram.c - periodogram ordinates by FFTW: half-length complex, real or chirp-z route. */
+#include "diag_periodogram.h"
+#include "hn_status.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <fftw3.h>
+
+/* FFTW's planner is not thread-safe and the battery runs in parallel threads
+ * (scan, batch, its own tasks): every plan is made and destroyed under one
+ * lock; executing a plan needs none.  Making a plan costs about half a
+ * transform (its trigonometric tables), so one plan per kind is kept for
+ * the length last used and run on new arrays (fftw_alloc gives every array
+ * the same alignment, as FFTW's new-array execution requires); a plan
+ * still running elsewhere when its slot is taken is freed by its last user. */
+enum { K_C2C_FWD, K_C2C_INV, K_R2C, K_KINDS };
+
+typedef struct kept_plan {
+    fftw_plan p;
+    int n, users, current;
+} kept_plan;
+
+static kept_plan *kept[K_KINDS];
+
+/* A plan of KIND and length N for arrays like IN/OUT; NULL when FFTW
+ * cannot make one.  Release with plan_release. */
+static kept_plan *plan_get(int kind, int n, void *in, void *out)
+{
+    kept_plan *k = NULL;
+#pragma omp critical(diag_fftw_planner)
+    {
+        if (kept[kind] && kept[kind]->n == n) {
+            k = kept[kind];
+            k->users++;
+        } else {
+            fftw_plan p = kind == K_R2C
+                ? fftw_plan_dft_r2c_1d(n, in, out, FFTW_ESTIMATE)
+                : fftw_plan_dft_1d(n, in, out, kind == K_C2C_FWD ? FFTW_FORWARD : FFTW_BACKWARD,
+                                   FFTW_ESTIMATE);
+            k = p ? malloc(sizeof *k) : NULL;
+            if (k) {
+                k->p = p;
+                k->n = n;
+                k->users = 1;
+                k->current = 1;
+                if (kept[kind]) {
+                    kept[kind]->current = 0;
+                    if (kept[kind]->users == 0) {
+                        fftw_destroy_plan(kept[kind]->p);
+                        free(kept[kind]);
+                    }
+                }
+                kept[kind] = k;
+            } else if (p) {
+                fftw_destroy_plan(p);
+            }
+        }
+    }
+    return k;
+}
+
+static void plan_release(kept_plan *k)
+{
+    if (!k)
+        return;
+#pragma omp critical(diag_fftw_planner)
+    {
+        k->users--;
+        if (!k->current && k->users == 0) {
+            fftw_destroy_plan(k->p);
+            free(k);
+        }
+    }
+}
+
+/* Largest prime factor of n (n >= 2), by trial division. */
+static size_t largest_prime_factor(size_t n)
+{
+    size_t p = 1;
+    for (size_t f = 2; f <= n / f; f++)
+        while (n % f == 0) {
+            p = f;
+            n /= f;
+        }
+    return n > 1 ? n : p;
+}
+
+/* Smallest L >= m whose prime factors are all 2, 3, 5 or 7. */
+static size_t smooth_length(size_t m)
+{
+    for (size_t L = m;; L++) {
+        size_t r = L;
+        static const size_t f[] = { 2, 3, 5, 7 };
+        for (int i = 0; i < 4; i++)
+            while (r % f[i] == 0)
+                r /= f[i];
+        if (r == 1)
+            return L;
+    }
+}
+
+int diag_periodogram_route(size_t n)
+{
+    if (n % 2 == 0)
+        return 0;
+    return largest_prime_factor(n) <= 97 ? 1 : 2;
+}
+
+/* Even n = 2m: with z_t = d_{2t} + i d_{2t+1} and Z its length-m DFT, the
+ * even and odd samples have the transforms E_j = (Z_j + conj Z_{m-j})/2 and
+ * O_j = (Z_j - conj Z_{m-j})/(2i), and X_j = E_j + exp(-2 pi i j/n) O_j.
+ * FFTW's complex transform of length m handles any factorisation of m in
+ * O(m log m), and about twice as fast as its real transform of length n
+ * including the planning.  The twiddles exp(-2 pi i j/n) are formed on the
+ * way as products of a coarse and a fine factor (j = a B + b, B about
+ * sqrt(q)), so that about 2 sqrt(q) sines and cosines are evaluated
+ * instead of 2q; each factor is correctly rounded to within an ulp, so the
+ * product is good to a few ulps, below the transform's own rounding. */
+static int periodogram_even(const double *d, size_t n, size_t q, double *I)
+{
+    size_t m = n / 2, B = (size_t)sqrt((double)q) + 1;
+    fftw_complex *a = fftw_alloc_complex(m);
+    double *fine = malloc(2 * B * sizeof *fine);
+    kept_plan *p = NULL;
+    int rc = HN_OK;
+    if (!a || !fine) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    memcpy(a, d, 2 * m * sizeof *d);   /* z_t = d_{2t} + i d_{2t+1}: the same layout */
+    p = plan_get(K_C2C_FWD, (int)m, a, a);
+    if (!p) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    fftw_execute_dft(p->p, a, a);
+    for (size_t b = 0; b < B; b++) {
+        double th = 2.0 * M_PI * (double)b / (double)n;
+        fine[2 * b] = cos(th);
+        fine[2 * b + 1] = -sin(th);
+    }
+    for (size_t j0 = 0; j0 <= q; j0 += B) {
+        double tha = 2.0 * M_PI * (double)j0 / (double)n;
+        double ca = cos(tha), sa = -sin(tha);
+        for (size_t b = 0; b < B && j0 + b <= q; b++) {
+            size_t j = j0 + b;
+            if (j == 0)
+                continue;
+            double cb = fine[2 * b], sb = fine[2 * b + 1];
+            double c = ca * cb - sa * sb, sn = ca * sb + sa * cb;
+            double zr = a[j][0], zi = a[j][1];
+            double cr = a[m - j][0], ci = -a[m - j][1];               /* conj Z_{m-j} */
+            double er = 0.5 * (zr + cr), ei = 0.5 * (zi + ci);
+            double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
+            double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
+            I[j - 1] = xr * xr + xi * xi;
+        }
+    }
+done:
+    plan_release(p);
+    fftw_free(a);
+    free(fine);
+    return rc;
+}
+
+/* Odd n with small prime factors: FFTW's real transform of length n. */
+static int periodogram_real(const double *d, size_t n, size_t q, double *I)
+{
+    double *in = fftw_alloc_real(n);
+    fftw_complex *out = fftw_alloc_complex(n / 2 + 1);
+    kept_plan *p = NULL;
+    int rc = HN_OK;
+    if (!in || !out) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    memcpy(in, d, n * sizeof *d);
+    p = plan_get(K_R2C, (int)n, in, out);
+    if (!p) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    fftw_execute_dft_r2c(p->p, in, out);
+    for (size_t j = 1; j <= q; j++)
+        I[j - 1] = out[j][0] * out[j][0] + out[j][1] * out[j][1];
+done:
+    plan_release(p);
+    fftw_free(in);
+    fftw_free(out);
+    return rc;
+}
+
+/* Odd n with a large prime factor (FFTW's prime-length algorithms are
+ * several times slower than a smooth length of twice the size): Bluestein's
+ * identity jt = (j^2 + t^2 - (j-t)^2)/2 as a circular convolution of length
+ * L >= 2n - 1, the smallest with prime factors 2, 3, 5 and 7 only; the
+ * outer chirp has modulus 1 and drops out of |X_j|^2, and FFTW's unscaled
+ * inverse leaves a factor L, removed at the end. */
+static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
+{
+    size_t L = smooth_length(2 * n - 1);
+    fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
+    kept_plan *fwd = NULL, *inv = NULL;
+    int rc = HN_OK;
+    if (!a || !b) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    memset(a, 0, L * sizeof *a);
+    memset(b, 0, L * sizeof *b);
+    unsigned long long two_n = 2ULL * (unsigned long long)n;
+    for (size_t t = 0; t < n; t++) {
+        /* exp(-i pi t^2 / n), with t^2 reduced mod 2n first for accuracy */
+        unsigned long long tt = ((unsigned long long)t * (unsigned long long)t) % two_n;
+        double th = M_PI * (double)tt / (double)n;
+        double c = cos(th), sn = sin(th);
+        a[t][0] = d[t] * c;
+        a[t][1] = -d[t] * sn;
+        b[t][0] = c;
+        b[t][1] = sn;
+        if (t > 0) {
+            b[L - t][0] = c;
+            b[L - t][1] = sn;
+        }
+    }
+    fwd = plan_get(K_C2C_FWD, (int)L, a, a);
+    inv = plan_get(K_C2C_INV, (int)L, a, a);
+    if (!fwd || !inv) {
+        rc = HN_ENOMEM;
+        goto done;
+    }
+    fftw_execute_dft(fwd->p, a, a);
+    fftw_execute_dft(fwd->p, b, b);
+    for (size_t k = 0; k < L; k++) {
+        double re = a[k][0] * b[k][0] - a[k][1] * b[k][1];
+        double im = a[k][0] * b[k][1] + a[k][1] * b[k][0];
+        a[k][0] = re;
+        a[k][1] = im;
+    }
+    fftw_execute_dft(inv->p, a, a);
+    double s = 1.0 / ((double)L * (double)L);
+    for (size_t j = 1; j <= q; j++)
+        I[j - 1] = (a[j][0] * a[j][0] + a[j][1] * a[j][1]) * s;
+done:
+    plan_release(fwd);
+    plan_release(inv);
+    fftw_free(a);
+    fftw_free(b);
+    return rc;
+}
+
+int diag_periodogram(const double *d, size_t n, size_t q, double *I)
+{
+    int route = diag_periodogram_route(n);
+    return route == 0 ? periodogram_even(d, n, q, I)
+         : route == 1 ? periodogram_real(d, n, q, I)
+                      : periodogram_chirp(d, n, q, I);
+}

@@ -1,0 +1,23 @@
+/* diag_periodogram.h - periodogram ordinates |X_j|^2 of a real series by FFT (FFTW).
+ *
+ * X_j = sum_t d_t exp(-2 pi i j t / n).  Internal to diagnose/ (the
+ * cumulative periodogram test); declared here so that the routes can be
+ * tested one by one. */
+#ifndef DIAG_PERIODOGRAM_H
+#define DIAG_PERIODOGRAM_H
+
+#include <stddef.h>
+
+/* |X_j|^2 for j = 1..q (q < n/2, n >= 2) into I[0..q-1]; D[0..n-1] is only
+ * read.  Routes: even n, one complex transform of length n/2; odd n whose
+ * prime factors are all at most 97, a real transform of length n; other odd
+ * n, Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  Returns
+ * HN_OK or HN_ENOMEM; ordinates that overflow are left infinite for the
+ * caller to judge. */
+int diag_periodogram(const double *d, size_t n, size_t q, double *I);
+
+/* Which route diag_periodogram takes for N: 0 half-length complex, 1 real,
+ * 2 chirp-z. */
+int diag_periodogram_route(size_t n);
+
+#endif
