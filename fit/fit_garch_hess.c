@@ -116,18 +116,26 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, double
     memset(d2s2, 0, sizeof d2s2);
     if (nma)
         memset(ring, 0, R * (size_t)T * sizeof *ring);
+/* de_t into D (and d2e_t into D2E with MA terms) for residual I: stored by
+ * the ordinary pass and continued by ma_second with MA terms, else formed
+ * from y as the residual pass forms it. */
+#define MEAN_DERIVS(i)                                                                   \
+    do {                                                                                 \
+        if (nma) {                                                                       \
+            d = w->de + (i) * (size_t)km;                                                \
+            d2e = ma_second(w->de, ring, (i), d2c, d2l, ma, mlag, R, km, moff + nar, nma); \
+        } else {                                                                         \
+            const double *yt = y0 + (i);                                                 \
+            if (moff)                                                                    \
+                dloc[0] = admu;                                                          \
+            UNROLL                                                                       \
+            for (int k = 0; k < nar; k++)                                                \
+                dloc[moff + k] = -(yt[-lag[k]] - mu);                                    \
+        }                                                                                \
+    } while (0)
     for (size_t i = 0; i < N; i++) {
         const double e = ev[i];
-        if (nma) {
-            d = w->de + i * (size_t)km;
-            d2e = ma_second(w->de, ring, i, d2c, d2l, ma, mlag, R, km, moff + nar, nma);
-        } else {
-            const double *yt = y0 + i;
-            if (moff)
-                dloc[0] = admu;
-            for (int k = 0; k < nar; k++)
-                dloc[moff + k] = -(yt[-lag[k]] - mu);
-        }
+        MEAN_DERIVS(i);
         for (int a = 0; a < km; a++) {
             ds2[a] += e * d[a];
             for (int b = 0; b <= a; b++)
@@ -196,17 +204,7 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, double
         dh[ib] = hprev + beta * dh[ib];
 
         const double e = ev[i], h = hv[i], e2 = e * e, r = 1.0 / h;
-        if (nma) {
-            d = w->de + i * (size_t)km;
-            d2e = ma_second(w->de, ring, i, d2c, d2l, ma, mlag, R, km, moff + nar, nma);
-        } else {
-            const double *yt = y0 + i;
-            if (moff)
-                dloc[0] = admu;
-            UNROLL
-            for (int k = 0; k < nar; k++)
-                dloc[moff + k] = -(yt[-lag[k]] - mu);
-        }
+        MEAN_DERIVS(i);
         double l_h, l_e, l_hh, l_he, l_ee, l_hn = 0.0, l_en = 0.0, l_nn = 0.0, l_n = 0.0;
         if (has_nu) {
             const double q = h * nm2 + e2, iq = 1.0 / q;
@@ -270,6 +268,7 @@ hess_body(fit_garch_work *w, const double *th, double *hess, double *opg, double
         hprev = h;
     }
 
+#undef MEAN_DERIVS
     for (int a = 0; a < kv; a++)
         for (int b = 0; b <= a; b++)
             hess[a * np + b] = hess[b * np + a] = acc[TRI(a, b)];

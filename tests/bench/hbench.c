@@ -132,6 +132,29 @@ static int bench_fit(const char *spec_text, const char *path, int reps, double *
     return 0;
 }
 
+/* What the checks run on: the series D, or the residuals of SPEC fitted to it
+ * (into R, with its ARMA term count for the portmanteau df).  Nonzero (D
+ * freed) when the fit fails. */
+static int checked_data(sh_data *d, const fit_spec *spec, fit_result *r, const double **x,
+                        size_t *n, int *df_adjust)
+{
+    *x = d->y;
+    *n = d->n;
+    *df_adjust = 0;
+    if (!spec)
+        return 0;
+    int rc = fit_model(d->y, d->n, spec, NULL, r);
+    if (rc != HN_OK) {
+        fprintf(stderr, "hbench: fit failed: %s\n", hn_strerror(rc));
+        sh_data_free(d);
+        return 1;
+    }
+    *x = r->resid;
+    *n = r->n_eff;
+    *df_adjust = fit_spec_arma_terms(spec);
+    return 0;
+}
+
 static int bench_battery(const char *path, int reps, const char *spec_text, double *t)
 {
     sh_data d;
@@ -140,22 +163,13 @@ static int bench_battery(const char *path, int reps, const char *spec_text, doub
     memset(&r, 0, sizeof r);
     if ((spec_text && parse_spec(spec_text, &spec)) || load(path, &d) != HN_OK)
         return 1;
-    const double *x = d.y;
-    size_t n = d.n;
+    const double *x;
+    size_t n;
     diag_options o = diag_default_options();
     o.lags = 20;
     o.arch_lags = 5;
-    if (spec_text) {
-        int rc = fit_model(d.y, d.n, &spec, NULL, &r);
-        if (rc != HN_OK) {
-            fprintf(stderr, "hbench: fit failed: %s\n", hn_strerror(rc));
-            sh_data_free(&d);
-            return 1;
-        }
-        x = r.resid;
-        n = r.n_eff;
-        o.df_adjust = fit_spec_arma_terms(&spec);
-    }
+    if (checked_data(&d, spec_text ? &spec : NULL, &r, &x, &n, &o.df_adjust))
+        return 1;
     diag_battery b;
     int rc = HN_OK;
     for (int i = 0; i < reps && rc == HN_OK; i++) {
@@ -209,20 +223,11 @@ static int bench_checks(const char *path, int reps, const char *spec_text, doubl
     memset(&r, 0, sizeof r);
     if ((spec_text && parse_spec(spec_text, &spec)) || load(path, &d) != HN_OK)
         return 1;
-    const double *x = d.y;
-    size_t n = d.n;
-    int df_adjust = 0;
-    if (spec_text) {
-        int rc = fit_model(d.y, d.n, &spec, NULL, &r);
-        if (rc != HN_OK) {
-            fprintf(stderr, "hbench: fit failed: %s\n", hn_strerror(rc));
-            sh_data_free(&d);
-            return 1;
-        }
-        x = r.resid;
-        n = r.n_eff;
-        df_adjust = fit_spec_arma_terms(&spec);
-    }
+    const double *x;
+    size_t n;
+    int df_adjust;
+    if (checked_data(&d, spec_text ? &spec : NULL, &r, &x, &n, &df_adjust))
+        return 1;
     diag_test tests[4];
     int rc = HN_OK;
     for (int i = 0; i < reps && rc == HN_OK; i++) {
