@@ -33,7 +33,7 @@ TEST_BIN  := $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
 .PHONY: all check demo asan deps install clean bench valgrind fuzz fuzz-run fuzz-build hone-asan-check
 all: hone
 
-$(BUILD)/%.o: %.c $(wildcard fit/*.h diagnose/*.h shell/*.h) Makefile
+$(BUILD)/%.o: %.c $(wildcard fit/*.h fit/*.inc diagnose/*.h shell/*.h) Makefile
 	@mkdir -p $(dir $@)
 	@echo "  CC   $<"
 	@$(CC) $(ALL_CFLAGS) -DHONE_VERSION='"$(VERSION)"' -c -o $@ $<
