@@ -289,15 +289,9 @@ static int add_file(const char *file, const char *columns, const char *time, ser
     int time_index = 0;
     if (rc == HN_OK) {
         /* the time column the loader would pick, so that "all" leaves it out */
-        sh_csv_options o;
-        memset(&o, 0, sizeof o);
-        o.time_column = time;
-        sh_data d;
-        if (sh_csv_load(file, &o, &d, &e) == HN_OK)
-            time_index = d.time_index;
-        else if (ncols == 1)
+        sh_error te;
+        if (sh_csv_time_index(file, time, &time_index, &te) != HN_OK)
             time_index = 0;
-        sh_data_free(&d);
     } else {
         error = strdup(e.message);
     }
@@ -474,6 +468,7 @@ int sh_batch_main(int argc, char **argv)
     (void)sh_command_table(NULL);       /* build the shared table before the threads start */
     if (threads < 1)
         threads = omp_get_max_threads();
+    omp_set_num_threads(threads);       /* --threads 1 means one thread inside the checks too */
     size_t next = lo, done = 0, nfailed = 0;
     long count = (long)(hi - lo);
 

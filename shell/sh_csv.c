@@ -28,9 +28,10 @@ typedef struct {
     sh_error *err;
     const sh_csv_options *opt;
     size_t max_rows;
-    int names_only;         /* stop after the header row */
+    int names_only;         /* 1: stop after the header row; 2: after choosing the
+                               columns from the first data row */
     int rc;                 /* HN_OK until the first error */
-    int done;               /* header read in names_only mode */
+    int done;               /* names_only: read as far as asked */
 
     long line;              /* physical line being fed to the parser */
     long row_line;          /* line where the current row began */
@@ -472,7 +473,7 @@ static void on_row(int c, void *arg)
     R->last_row_end = R->line;
     R->cb_line = R->line + 1; /* where the next row starts unless blank lines follow */
     if (R->state == 0) {
-        if (R->names_only) {
+        if (R->names_only == 1) {
             R->done = 1;
             return;
         }
@@ -484,6 +485,14 @@ static void on_row(int c, void *arg)
         fail(R, HN_EPARSE, R->row_line, 0,
              "this row has %d field%s but the header row has %d (fields split at each %s)",
              nf, nf == 1 ? "" : "s", R->ncols, delim_name(R->delim));
+        return;
+    }
+    if (R->state == 1 && R->names_only == 2) {
+        choose_columns(R);
+        for (int j = 0; j < R->nfirst; j++)
+            free(R->first[j]);
+        R->nfirst = 0;
+        R->done = 1;
         return;
     }
     if (R->state == 1) {
@@ -810,6 +819,35 @@ int sh_column_names(const char *path, char ***names, int *ncols, sh_error *err)
     R.ncols = 0;
     reader_free(&R);
     return HN_OK;
+}
+
+int sh_csv_time_index(const char *path, const char *time_column, int *time_index, sh_error *err)
+{
+    reader R;
+    char d = ',';
+    int bom = 0;
+    sh_csv_options o;
+    memset(&R, 0, sizeof R);
+    memset(&o, 0, sizeof o);
+    sh_error_clear(err);
+    *time_index = 0;
+    if (!path) {
+        sh_error_set(err, NULL, 0, 0, "no file name given");
+        return HN_EINVAL;
+    }
+    o.time_column = time_column;
+    R.path = path;
+    R.err = err;
+    R.opt = &o;
+    R.names_only = 2;
+    R.tcol = -1;
+    int rc = read_file(&R, &d, &bom);
+    if (rc == HN_OK && !R.done)
+        rc = fail(&R, HN_EPARSE, 0, 0, "no data rows after the header");
+    if (rc == HN_OK)
+        *time_index = R.tcol + 1;
+    reader_free(&R);
+    return rc;
 }
 
 int sh_csv_load(const char *path, const sh_csv_options *opt, sh_data *out, sh_error *err)

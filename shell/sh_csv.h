@@ -103,6 +103,13 @@ void sh_data_free(sh_data *d);
  * (may be NULL) filled. */
 int sh_column_names(const char *path, char ***names, int *ncols, sh_error *err);
 
+/* The 1-based field number of the time column that sh_csv_load would take
+ * for PATH with options.time_column = TIME_COLUMN (NULL: automatic), 0 for
+ * none, judged as the loader judges it: from the header and the first data
+ * row only, so without reading the rest of the file.  HN_OK, or an HN_ code
+ * with *TIME_INDEX = 0 and *ERR (may be NULL) filled. */
+int sh_csv_time_index(const char *path, const char *time_column, int *time_index, sh_error *err);
+
 /* Free an array of N strings from sh_column_names.  NAMES may be NULL. */
 void sh_names_free(char **names, int n);
 

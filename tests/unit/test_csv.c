@@ -454,6 +454,53 @@ static void test_column_names(void **state)
     assert_int_equal(n, 0);
 }
 
+/* sh_csv_time_index names the time column sh_csv_load takes, from the first
+ * data row alone: the same field on files the loader reads, and the field
+ * still when a later row would stop the loader. */
+static void test_time_index(void **state)
+{
+    (void)state;
+    static const struct {
+        const char *text, *time;
+        int want;
+    } cases[] = {
+        { "y,date\n1,2024-01-01\n2,2024-01-02\n", NULL, 2 },
+        { "id,when,y\n1,2024-01,3\n2,2024-02,4\n", NULL, 2 },
+        { "a,b\n1,2\n3,4\n", NULL, 0 },
+        { "year,y\n2001,1\n2002,2\n", NULL, 1 },
+        { "year,y\n2001,1\n2002,2\n", "", 0 },
+        { "y,stamp\n1,x\n2,y\n", "stamp", 2 },
+        { "q;v\n2020-Q1;1,5\n", NULL, 1 },
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        const char *path = write_file("tix.csv", cases[i].text, 0);
+        int ti = -1;
+        sh_error e;
+        assert_int_equal(sh_csv_time_index(path, cases[i].time, &ti, &e), HN_OK);
+        assert_int_equal(ti, cases[i].want);
+        sh_csv_options o;
+        memset(&o, 0, sizeof o);
+        o.time_column = cases[i].time;
+        sh_data d;
+        if (sh_csv_load(path, &o, &d, &e) == HN_OK)
+            assert_int_equal(d.time_index, ti);
+        sh_data_free(&d);
+        unlink(path);
+    }
+    /* a bad cell far down stops the loader, not the time column's choice */
+    const char *path = write_file("tix.csv", "date,y\n2024-01-01,1\n2024-01-02,zz\n", 0);
+    int ti = -1;
+    sh_error e;
+    assert_int_equal(sh_csv_time_index(path, NULL, &ti, &e), HN_OK);
+    assert_int_equal(ti, 1);
+    unlink(path);
+    path = write_file("tix.csv", "date,y\n", 0);
+    assert_int_equal(sh_csv_time_index(path, NULL, &ti, &e), HN_EPARSE);
+    assert_int_equal(ti, 0);
+    unlink(path);
+    assert_int_equal(sh_csv_time_index("/nonexistent/x.csv", NULL, &ti, &e), HN_EIO);
+}
+
 /* Numbers read by the loader equal glibc's strtod (Debian glibc 2.36, C locale) bit for
  * bit, over many written forms: the loader's fast path and its fallback both. */
 static void test_numbers_match_strtod(void **state)
@@ -626,6 +673,7 @@ int main(void)
         cmocka_unit_test(test_refusals),   cmocka_unit_test(test_long_line),
         cmocka_unit_test(test_file_errors), cmocka_unit_test(test_loads),
         cmocka_unit_test(test_time_stamps), cmocka_unit_test(test_column_names),
+        cmocka_unit_test(test_time_index),
         cmocka_unit_test(test_numbers_match_strtod), cmocka_unit_test(test_locale_independent),
         cmocka_unit_test(test_series_f),   cmocka_unit_test(test_dmbp),
     };
