@@ -40,6 +40,8 @@ typedef struct {
     const double *x0;           /* origin of the preconditioned coordinates */
     double *xz, *gz;            /* np scratch each for obj_z */
     volatile int *interrupt;    /* the caller's stop flag, or NULL */
+    int rough;                  /* 1: a first look (the subsample of a long series):
+                                   no Newton steps after BFGS2 */
     int cached;                 /* 1: cx, cf, cg hold the last evaluation of obj_x */
     double cx[FIT_MAX_PARAMS], cf, cg[FIT_MAX_PARAMS];
 } garch_ctx;
@@ -709,7 +711,7 @@ static int multistart(garch_ctx *c, const fit_options *o, const double *mstart, 
         }
         if (orc != HN_OK && orc != HN_ENOCONV)
             continue;
-        rc = newton_polish(c, x, o->grad_tol, &rep.grad_norm);
+        rc = c->rough ? HN_OK : newton_polish(c, x, o->grad_tol, &rep.grad_norm);
         if (rc != HN_OK)
             break;
         rep.converged = rep.grad_norm < o->grad_tol;
@@ -740,6 +742,9 @@ static int multistart(garch_ctx *c, const fit_options *o, const double *mstart, 
  * took hundreds. */
 #define SUB_N 20000
 #define LONG_N (4 * SUB_N)
+/* The subsample's optimum lies O(1/sqrt(SUB_N)) from the whole series' one:
+ * its gradient need not be driven far below that. */
+#define SUB_TOL 1e-6
 
 static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, double s2,
                      double *xbest, fit_optim_report *rep, int *evals)
@@ -760,7 +765,10 @@ static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, d
         return HN_ENOMEM;
     }
     fit_optim_report srep;
-    rc = multistart(&sub, o, mstart, s2, xs, &srep);
+    fit_options so = *o;
+    so.grad_tol = SUB_TOL;
+    sub.rough = 1;
+    rc = multistart(&sub, &so, mstart, s2, xs, &srep);
     if (rc == HN_OK) {
         rc = fit_hessian_fd(np, xs, obj_x, &sub, H);
         if (rc == HN_OK && LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', np, H, np) != 0)
@@ -858,15 +866,17 @@ int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
     c.gz = buf + 4 * np;
     double *th = buf + 5 * np;
 
-    /* Mean start (Hannan-Rissanen) and the residual variance there. */
+    /* Mean start (Hannan-Rissanen) and the residual variance there; for a
+     * long series from the subsample that two_stage fits first. */
     double mstart[FIT_MAX_PARAMS], xbest[FIT_MAX_PARAMS];
-    rc = fit_arma_start(spec, y, n, mstart);
+    const size_t n0 = c.w.N >= LONG_N ? c.w.start + SUB_N : n;
+    rc = fit_arma_start(spec, y, n0, mstart);
     double s2 = vy;
     if (rc == HN_OK) {
         double ssr;
-        if (fit_arma_resid(c.w.aw, y, n, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
+        if (fit_arma_resid(c.w.aw, y, n0, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
             ssr > 0.0 && isfinite(ssr))
-            s2 = ssr / (double)c.w.N;
+            s2 = ssr / (double)(n0 - c.w.start);
     }
     int evaluations = 0;
     fit_optim_report rep;

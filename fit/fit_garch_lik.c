@@ -163,13 +163,16 @@ static int ar_resid(fit_garch_work *w, const double *th, double *ssr, double *gs
 
 /* The pass behind fit_garch_loglik for KM mean parameters and Student-t
  * (HAS_NU = 1) or normal innovations, AR_ONLY = 1 when the mean has no MA
- * terms; the caller has counted the pass and checked TH.  Sums and
+ * terms, then with FMOFF (1: a constant) and FNAR AR terms when these are
+ * fixed at compile time (FMOFF < 0: read from the spec); the caller has
+ * counted the pass and checked TH.  Sums and
  * derivatives live in locals (no aliasing with the output arrays).  The
  * log-likelihood's sums are plain within a block of LOG_BLOCK terms and
  * compensated (Neumaier) across blocks. */
 static inline __attribute__((always_inline)) int
 loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, double *scores,
-            double *opg, const int km, const int has_nu, const int ar_only, const int mode)
+            double *opg, const int km, const int has_nu, const int ar_only, const int mode,
+            const int fmoff, const int fnar)
 {
     const int np = km + 3 + has_nu, io = km;
     const int kv = km + 3;                 /* parameters the variance depends on */
@@ -194,7 +197,8 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
                                       want_d ? de2 : NULL);
     /* Without MA terms de_t/dtheta_mean is (sum ar - 1, -(y_{t-lag} - mu)...):
      * formed below as fit_arma_resid forms it, instead of stored and read back. */
-    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar;
+    const int moff = fmoff >= 0 ? fmoff : w->spec.mean ? 1 : 0;
+    const int nar = fmoff >= 0 ? fnar : w->spec.n_ar;
     const double *y0 = w->y + w->start;    /* y_t for residual 0 */
     double amu = 0.0, admu = 0.0, dloc[FIT_MAX_PARAMS];
     ptrdiff_t alag[FIT_MAX_TERMS];
@@ -292,6 +296,7 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
                     const double *yt = y0 + i;
                     if (moff)
                         dloc[0] = admu;
+                    UNROLL
                     for (int k = 0; k < nar; k++)
                         dloc[moff + k] = -(yt[-alag[k]] - amu);
                     d = dloc;
@@ -349,8 +354,35 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
     return HN_OK;
 }
 
+static int loglik_pass(fit_garch_work *w, const double *th, double *ll, double *grad,
+                       double *scores, double *opg);
+
 int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
                      double *grad, double *scores, double *opg)
+{
+    const int np = w->np;
+    const int kind = grad ? 2 : 1, rows = scores || opg;
+    if (!rows && w->last_kind >= kind && memcmp(th, w->last_th, (size_t)np * sizeof *th) == 0) {
+        *ll = w->last_ll;
+        if (grad)
+            memcpy(grad, w->last_g, (size_t)np * sizeof *grad);
+        return HN_OK;
+    }
+    w->last_kind = 0;
+    int rc = loglik_pass(w, th, ll, grad, scores, opg);
+    if (rc == HN_OK) {
+        w->last_kind = kind;
+        memcpy(w->last_th, th, (size_t)np * sizeof *th);
+        w->last_ll = *ll;
+        if (grad)
+            memcpy(w->last_g, grad, (size_t)np * sizeof *grad);
+    }
+    return rc;
+}
+
+/* fit_garch_loglik without the memory of the last pass. */
+static int loglik_pass(fit_garch_work *w, const double *th, double *ll, double *grad,
+                       double *scores, double *opg)
 {
     const int km = w->k_mean, np = w->np;
     w->passes++;
@@ -365,7 +397,7 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
      * per-observation scores; each does the same operations in the same
      * order as the general one. */
     const int ar = w->spec.n_ma == 0, nu = w->has_nu;
-#define BODY(K, NU, AR, MODE) loglik_body(w, th, ll, grad, scores, opg, K, NU, AR, MODE)
+#define BODY(K, NU, AR, MODE) loglik_body(w, th, ll, grad, scores, opg, K, NU, AR, MODE, -1, 0)
 #define BY_NU_AR(K, MODE) \
     (nu ? (ar ? BODY(K, 1, 1, MODE) : BODY(K, 1, 0, MODE)) \
         : (ar ? BODY(K, 0, 1, MODE) : BODY(K, 0, 0, MODE)))
@@ -373,6 +405,15 @@ int fit_garch_loglik(fit_garch_work *w, const double *th, double *ll,
         return BY_NU_AR(km, 2);
     if (!grad)
         return BY_NU_AR(km, 0);
+    /* Means without MA terms: the constant and the AR count fixed too, so
+     * that de_t/dtheta_mean lives in registers. */
+    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar;
+#define AR_FIXED(M, A) \
+    if (ar && moff == (M) && nar == (A)) \
+        return nu ? loglik_body(w, th, ll, grad, NULL, NULL, (M) + (A), 1, 1, 1, M, A) \
+                  : loglik_body(w, th, ll, grad, NULL, NULL, (M) + (A), 0, 1, 1, M, A);
+    AR_FIXED(0, 0) AR_FIXED(1, 0) AR_FIXED(1, 1) AR_FIXED(0, 1) AR_FIXED(1, 2) AR_FIXED(0, 2)
+#undef AR_FIXED
     switch (km) {
     case 0: return BY_NU_AR(0, 1);
     case 1: return BY_NU_AR(1, 1);

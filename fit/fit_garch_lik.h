@@ -25,6 +25,10 @@ typedef struct {
     double s2;           /* sigma2_0 = e2_0 (mean e_t^2) at the last evaluation */
     fit_arma_ws *aw;     /* residual recursion workspace */
     long passes;         /* likelihood passes made so far (work counter) */
+    /* The last pass: e, de, h and s2 belong to it; a call at the same
+     * theta asking no more than it gave is answered from here. */
+    int last_kind;       /* 0: none (or failed), 1: value, 2: value and gradient */
+    double last_th[FIT_MAX_PARAMS], last_ll, last_g[FIT_MAX_PARAMS];
 } fit_garch_work;
 
 /* Size W for SPEC (spec->garch set) on Y[0..n-1]; Y must outlive W.
@@ -42,7 +46,9 @@ void fit_garch_work_free(fit_garch_work *w);
  * Writes *LL; when GRAD is not NULL its analytic gradient (w->np values);
  * when SCORES is not NULL the per-observation scores (N x np, row-major);
  * when OPG is not NULL the sum of their outer products (np x np, row-major).
- * Leaves w->e and w->h at THETA and counts one pass in w->passes.  HN_OK,
+ * Leaves w->e and w->h at THETA and counts one pass in w->passes, except
+ * when the last pass was at the same THETA and asked as much (no SCORES or
+ * OPG, GRAD only if it gave one): then its results are given again.  HN_OK,
  * or HN_EDOMAIN when a variance is not positive, nu <= 2 or a value is not
  * finite.  The log-likelihood is summed with Neumaier's compensation. */
 int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
