@@ -866,17 +866,15 @@ int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
     c.gz = buf + 4 * np;
     double *th = buf + 5 * np;
 
-    /* Mean start (Hannan-Rissanen) and the residual variance there; for a
-     * long series from the subsample that two_stage fits first. */
+    /* Mean start (Hannan-Rissanen) and the residual variance there. */
     double mstart[FIT_MAX_PARAMS], xbest[FIT_MAX_PARAMS];
-    const size_t n0 = c.w.N >= LONG_N ? c.w.start + SUB_N : n;
-    rc = fit_arma_start(spec, y, n0, mstart);
+    rc = fit_arma_start(spec, y, n, mstart);
     double s2 = vy;
     if (rc == HN_OK) {
         double ssr;
-        if (fit_arma_resid(c.w.aw, y, n0, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
+        if (fit_arma_resid(c.w.aw, y, n, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
             ssr > 0.0 && isfinite(ssr))
-            s2 = ssr / (double)(n0 - c.w.start);
+            s2 = ssr / (double)c.w.N;
     }
     int evaluations = 0;
     fit_optim_report rep;
