@@ -26,6 +26,120 @@ static void ksum_add(ksum *k, double x)
 
 static double ksum_value(const ksum *k) { return k->s + k->c; }
 
+/* Loops over the parameters unroll in full in the fixed-count copies (a
+ * hint only; the order of the operations stays as written). */
+#if defined(__GNUC__)
+#define UNROLL _Pragma("GCC unroll 16")
+#else
+#define UNROLL
+#endif
+
+/* The window sums of an AR mean (see fit_garch_work): plain sums over
+ * blocks of 64 residuals, compensated across blocks, about a shift that
+ * centres y, so that the products carry no large mean. */
+static inline __attribute__((always_inline)) void moments_body(fit_garch_work *w, const int K)
+{
+    const int B = 64;
+    const size_t N = w->N;
+    const double *y0 = w->y + w->start;
+    ptrdiff_t lag[FIT_GARCH_MOM];
+    lag[0] = 0;
+    for (int k = 1; k < K; k++)
+        lag[k] = (ptrdiff_t)w->spec.ar_lag[k - 1];
+    ksum sc = { 0.0, 0.0 };
+    for (size_t i0 = 0; i0 < N; i0 += B) {
+        const size_t i1 = N - i0 > (size_t)B ? i0 + B : N;
+        double b = 0.0;
+        for (size_t i = i0; i < i1; i++)
+            b += y0[i];
+        ksum_add(&sc, b);
+    }
+    const double c = ksum_value(&sc) / (double)N;
+    ksum m[FIT_GARCH_MOM], G[FIT_GARCH_MOM * FIT_GARCH_MOM];
+    memset(m, 0, sizeof m);
+    memset(G, 0, sizeof G);
+    for (size_t i0 = 0; i0 < N; i0 += B) {
+        const size_t i1 = N - i0 > (size_t)B ? i0 + B : N;
+        double bm[FIT_GARCH_MOM] = { 0.0 }, bG[FIT_GARCH_MOM * FIT_GARCH_MOM] = { 0.0 };
+        for (size_t i = i0; i < i1; i++) {
+            double u[FIT_GARCH_MOM];
+            UNROLL
+            for (int j = 0; j < K; j++)
+                u[j] = y0[(ptrdiff_t)i - lag[j]] - c;
+            UNROLL
+            for (int j = 0; j < K; j++) {
+                bm[j] += u[j];
+                UNROLL
+                for (int k = 0; k <= j; k++)
+                    bG[j * K + k] += u[j] * u[k];
+            }
+        }
+        for (int j = 0; j < K; j++) {
+            ksum_add(&m[j], bm[j]);
+            for (int k = 0; k <= j; k++)
+                ksum_add(&G[j * K + k], bG[j * K + k]);
+        }
+    }
+    w->mom_c = c;
+    for (int j = 0; j < K; j++) {
+        w->mom_m[j] = ksum_value(&m[j]);
+        for (int k = 0; k <= j; k++)
+            w->mom_G[j * K + k] = w->mom_G[k * K + j] = ksum_value(&G[j * K + k]);
+    }
+    w->mom = 1;
+}
+
+/* moments_body with the number of series fixed at compile time. */
+_Static_assert(FIT_GARCH_MOM == 5, "one case per AR count below FIT_GARCH_MOM");
+static void moments_init(fit_garch_work *w)
+{
+    switch (w->spec.n_ar) {
+    case 0: moments_body(w, 1); break;
+    case 1: moments_body(w, 2); break;
+    case 2: moments_body(w, 3); break;
+    case 3: moments_body(w, 4); break;
+    default: moments_body(w, 5); break;
+    }
+}
+
+/* sum e_t^2 into *SSR and, when GSUM is not NULL, sum_t e_t de_t/dtheta_mean
+ * (as ar_resid gives them) from the window sums: with a = (1, -ar..),
+ * S = sum a, u_t as in fit_garch_work and d = mom_c - mu, e_t = a'u_t + S d,
+ * so sum e^2 = a'Ga + 2 S d a'm + N (S d)^2.  The terms of a'Ga cancel by
+ * about (sum |a|)^2 sum u_0^2 / sum e^2, a few digits for an AR root near 1.
+ * HN_OK or HN_EDOMAIN. */
+static int ar_moments(const fit_garch_work *w, const double *th, double *ssr, double *gsum)
+{
+    const int moff = w->spec.mean ? 1 : 0, K = w->spec.n_ar + 1;
+    const double dn = (double)w->N;
+    double a[FIT_GARCH_MOM], Ga[FIT_GARCH_MOM], S = 1.0, am = 0.0, aGa = 0.0;
+    a[0] = 1.0;
+    for (int k = 1; k < K; k++) {
+        a[k] = -th[moff + k - 1];
+        S += a[k];
+    }
+    for (int j = 0; j < K; j++) {
+        double v = 0.0;
+        for (int k = 0; k < K; k++)
+            v += w->mom_G[j * K + k] * a[k];
+        Ga[j] = v;
+        aGa += a[j] * v;
+        am += a[j] * w->mom_m[j];
+    }
+    const double d = w->mom_c - (moff ? th[0] : 0.0), delta = S * d;
+    *ssr = aGa + 2.0 * delta * am + dn * delta * delta;
+    if (!isfinite(*ssr))
+        return HN_EDOMAIN;
+    if (gsum) {
+        const double se = am + dn * delta;             /* sum e_t */
+        if (moff)
+            gsum[0] = -S * se;
+        for (int k = 1; k < K; k++)
+            gsum[moff + k - 1] = -(Ga[k] + delta * w->mom_m[k] + d * se);
+    }
+    return HN_OK;
+}
+
 int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_spec *spec)
 {
     memset(w, 0, sizeof *w);
@@ -51,6 +165,8 @@ int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_
         fit_garch_work_free(w);
         return HN_ENOMEM;
     }
+    if (spec->n_ma == 0 && spec->n_ar < FIT_GARCH_MOM)
+        moments_init(w);
     return HN_OK;
 }
 
@@ -64,13 +180,6 @@ void fit_garch_work_free(fit_garch_work *w)
     w->aw = NULL;
 }
 
-/* Loops over the parameters unroll in full in the fixed-count copies (a
- * hint only; the order of the operations stays as written). */
-#if defined(__GNUC__)
-#define UNROLL _Pragma("GCC unroll 16")
-#else
-#define UNROLL
-#endif
 
 /* Sum of log terms without a logarithm per observation: log prod_i v_i =
  * sum_i (k_i ln 2) + log prod_i m_i with v_i = m_i 2^k_i, m_i in [1, 2), the
@@ -192,25 +301,30 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
     double g[FIT_MAX_PARAMS];              /* gradient          (np) */
     double rowl[FIT_MAX_PARAMS];           /* this term's scores without SCORES */
     double ssr;
-    int rc = ar_only ? ar_resid(w, th, &ssr, want_d ? de2 : NULL)
-                     : fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
-                                      want_d ? de2 : NULL);
+    /* with the window sums, e_t is formed in the main loop below instead */
+    const int inl = ar_only && w->mom;
+    int rc = inl ? ar_moments(w, th, &ssr, want_d ? de2 : NULL)
+             : ar_only ? ar_resid(w, th, &ssr, want_d ? de2 : NULL)
+                       : fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
+                                        want_d ? de2 : NULL);
     /* Without MA terms de_t/dtheta_mean is (sum ar - 1, -(y_{t-lag} - mu)...):
      * formed below as fit_arma_resid forms it, instead of stored and read back. */
     const int moff = fmoff >= 0 ? fmoff : w->spec.mean ? 1 : 0;
     const int nar = fmoff >= 0 ? fnar : w->spec.n_ar;
     const double *y0 = w->y + w->start;    /* y_t for residual 0 */
-    double amu = 0.0, admu = 0.0, dloc[FIT_MAX_PARAMS];
+    double amu = 0.0, admu = 0.0, dloc[FIT_MAX_PARAMS], arc[FIT_MAX_TERMS];
     ptrdiff_t alag[FIT_MAX_TERMS];
     if (ar_only) {
         amu = moff ? th[0] : 0.0;
         double sum_ar = 0.0;
         for (int k = 0; k < nar; k++) {
+            arc[k] = th[moff + k];
             sum_ar += th[moff + k];
             alag[k] = (ptrdiff_t)w->spec.ar_lag[k];
         }
         admu = sum_ar - 1.0;
     }
+    double *ew = w->e;
     if (rc != HN_OK)
         return HN_EDOMAIN;
     const double s2 = ssr / (double)N;
@@ -252,7 +366,17 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
         double ph = 1.0, pu = 1.0, sq = 0.0, sw = 0.0;
         int64_t eh = 0, eu = 0;
         for (size_t i = i0; i < i1; i++) {
-            const double e = ev[i];
+            double e;
+            if (inl) {                     /* the operations of ar_resid */
+                const double *yt = y0 + i;
+                e = yt[0] - amu;
+                UNROLL
+                for (int k = 0; k < nar; k++)
+                    e -= arc[k] * (yt[-alag[k]] - amu);
+                ew[i] = e;
+            } else {
+                e = ev[i];
+            }
             const double h = omega + alpha * e2prev + beta * hprev;
             if (!(h >= DBL_MIN && h <= DBL_MAX))
                 return HN_EDOMAIN;
@@ -403,17 +527,19 @@ static int loglik_pass(fit_garch_work *w, const double *th, double *ll, double *
         : (ar ? BODY(K, 0, 1, MODE) : BODY(K, 0, 0, MODE)))
     if (scores || opg)
         return BY_NU_AR(km, 2);
-    if (!grad)
-        return BY_NU_AR(km, 0);
     /* Means without MA terms: the constant and the AR count fixed too, so
-     * that de_t/dtheta_mean lives in registers. */
-    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar;
+     * that e_t and de_t/dtheta_mean live in registers. */
+    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar, md = grad ? 1 : 0;
 #define AR_FIXED(M, A) \
     if (ar && moff == (M) && nar == (A)) \
-        return nu ? loglik_body(w, th, ll, grad, NULL, NULL, (M) + (A), 1, 1, 1, M, A) \
-                  : loglik_body(w, th, ll, grad, NULL, NULL, (M) + (A), 0, 1, 1, M, A);
+        return nu ? (md ? loglik_body(w, th, ll, grad, NULL, NULL, (M) + (A), 1, 1, 1, M, A) \
+                        : loglik_body(w, th, ll, NULL, NULL, NULL, (M) + (A), 1, 1, 0, M, A)) \
+                  : (md ? loglik_body(w, th, ll, grad, NULL, NULL, (M) + (A), 0, 1, 1, M, A) \
+                        : loglik_body(w, th, ll, NULL, NULL, NULL, (M) + (A), 0, 1, 0, M, A));
     AR_FIXED(0, 0) AR_FIXED(1, 0) AR_FIXED(1, 1) AR_FIXED(0, 1) AR_FIXED(1, 2) AR_FIXED(0, 2)
 #undef AR_FIXED
+    if (!grad)
+        return BY_NU_AR(km, 0);
     switch (km) {
     case 0: return BY_NU_AR(0, 1);
     case 1: return BY_NU_AR(1, 1);

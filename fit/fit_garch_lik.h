@@ -6,6 +6,8 @@
 #include "fit_arma.h"
 #include "fit_spec.h"
 
+#define FIT_GARCH_MOM 5
+
 /* Workspace of one fit: sized once, so likelihood passes allocate nothing.
  * Natural parameter vector theta follows fit_spec.h:
  *   [mu] ar.. ma.. omega alpha1 beta1 [nu]. */
@@ -25,6 +27,12 @@ typedef struct {
     double s2;           /* sigma2_0 = e2_0 (mean e_t^2) at the last evaluation */
     fit_arma_ws *aw;     /* residual recursion workspace */
     long passes;         /* likelihood passes made so far (work counter) */
+    /* Means without MA terms and with at most FIT_GARCH_MOM - 1 AR terms:
+     * sums over the residual window of u_j = y_{t-l_j} - mom_c (l_0 = 0,
+     * then the AR lags) and of their products, so that sum e_t^2 (and its
+     * gradient), which sets sigma2_0, needs no pass of its own. */
+    int mom;             /* 1 when the sums below are set */
+    double mom_c, mom_m[FIT_GARCH_MOM], mom_G[FIT_GARCH_MOM * FIT_GARCH_MOM];
     /* The last pass: e, de, h and s2 belong to it; a call at the same
      * theta asking no more than it gave is answered from here. */
     int last_kind;       /* 0: none (or failed), 1: value, 2: value and gradient */
