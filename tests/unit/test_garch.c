@@ -270,6 +270,90 @@ static void test_hessian(void **state)
     fit_garch_work_free(&w);
 }
 
+/* The log-likelihood of an AR mean, whose sum e_t^2 (sigma2_0) comes from
+ * window sums of the series, against the definition evaluated directly in
+ * long double: a large mean and an AR polynomial near a unit root, with and
+ * without the constant, where those sums cancel most. */
+static long double direct_loglik(const double *y, size_t n, int mean, const double *th, int nar)
+{
+    const size_t p = (size_t)nar, N = n - p;
+    const double mu = mean ? th[0] : 0.0;
+    const double *ar = th + (mean ? 1 : 0), *v = ar + nar;
+    long double *e = malloc(N * sizeof *e), ss = 0.0L;
+    assert_non_null(e);
+    for (size_t t = p; t < n; t++) {
+        long double x = (long double)y[t] - mu;
+        for (int k = 0; k < nar; k++)
+            x -= (long double)ar[k] * ((long double)y[t - 1 - (size_t)k] - mu);
+        e[t - p] = x;
+        ss += x * x;
+    }
+    long double s2 = ss / (long double)N, hp = s2, ep = s2, ll = 0.0L;
+    for (size_t i = 0; i < N; i++) {
+        long double h = v[0] + v[1] * ep + v[2] * hp;
+        ll += -0.5L * (logl(2.0L * 3.14159265358979323846264338327950288L) + logl(h) + e[i] * e[i] / h);
+        hp = h;
+        ep = e[i] * e[i];
+    }
+    free(e);
+    return ll;
+}
+
+static void test_ar_window_sums(void **state)
+{
+    (void)state;
+    const size_t n = 3000;
+    double *y = malloc(n * sizeof *y);
+    assert_non_null(y);
+    /* Invented series from fit_simulate, seed 20261202. */
+    fit_spec s = spec_of("ar(2)+garch(1,1)");
+    const double truth[6] = { 1e4, 0.93, 0.05, 0.05, 0.1, 0.85 };
+    assert_int_equal(fit_simulate(&s, truth, n, 500, 20261202UL, y), HN_OK);
+    const double at[3][6] = { { 1e4 + 0.3, 0.9, 0.07, 0.06, 0.12, 0.8 },
+                              { 9990.0, 0.99, 0.0, 0.05, 0.1, 0.85 },
+                              { 1e4, 0.5, -0.2, 0.2, 0.05, 0.7 } };
+    for (int mean = 1; mean >= 0; mean--) {
+        fit_spec sm = s;
+        sm.mean = mean;
+        fit_garch_work w;
+        assert_int_equal(fit_garch_work_init(&w, y, n, &sm), HN_OK);
+        for (int k = 0; k < 3; k++) {
+            double ll;
+            const double *th = mean ? at[k] : at[k] + 1;
+            assert_int_equal(fit_garch_loglik(&w, th, &ll, NULL, NULL, NULL), HN_OK);
+            long double want = direct_loglik(y, n, mean, th, 2);
+            if (!(fabsl((long double)ll - want) <= 1e-11L * fabsl(want))) {
+                print_error("mean %d point %d: %.17g, directly %.17Lg\n", mean, k, ll, want);
+                fail();
+            }
+        }
+        fit_garch_work_free(&w);
+    }
+    /* the gradient through the same sums, against 4-point central
+     * differences (truncation O(h^4); the step for mu is absolute, on the
+     * scale of the series' spread rather than of its mean) */
+    fit_garch_work w;
+    assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
+    double th[6] = { 1e4 + 0.2, 0.9, 0.06, 0.06, 0.12, 0.8 }, g[6], ll, f[4];
+    assert_int_equal(fit_garch_loglik(&w, th, &ll, g, NULL, NULL), HN_OK);
+    for (int i = 0; i < 6; i++) {
+        const double a = th[i], h = i == 0 ? 1e-3 : 1e-4 * fabs(a);
+        const double off[4] = { -2.0, -1.0, 1.0, 2.0 };
+        for (int k = 0; k < 4; k++) {
+            th[i] = a + off[k] * h;
+            assert_int_equal(fit_garch_loglik(&w, th, &f[k], NULL, NULL, NULL), HN_OK);
+        }
+        th[i] = a;
+        double fd = (8.0 * (f[2] - f[1]) - (f[3] - f[0])) / (12.0 * h);
+        if (!(fabs(g[i] - fd) <= 1e-6 * (fabs(fd) > 1.0 ? fabs(fd) : 1.0))) {
+            print_error("d/dpar%d analytic %.12g, differences %.12g\n", i, g[i], fd);
+            fail();
+        }
+    }
+    fit_garch_work_free(&w);
+    free(y);
+}
+
 static void test_gradient_normal(void **state)
 {
     (void)state;
@@ -451,6 +535,7 @@ int main(void)
         cmocka_unit_test(test_dmbp_benchmark),
         cmocka_unit_test(test_dmbp_loglik_at_published_point),
         cmocka_unit_test(test_dmbp_loglik_against_scipy),
+        cmocka_unit_test(test_ar_window_sums),
         cmocka_unit_test(test_gradient_normal),
         cmocka_unit_test(test_gradient_t),
         cmocka_unit_test(test_gradient_arma_normal),
