@@ -140,6 +140,40 @@ static int ar_moments(const fit_garch_work *w, const double *th, double *ssr, do
     return HN_OK;
 }
 
+int fit_garch_mean_sums(const fit_garch_work *w, const double *th, double *s1, double *s2)
+{
+    if (!w->mom)
+        return HN_EINVAL;
+    const int moff = w->spec.mean ? 1 : 0, nar = w->spec.n_ar, K = nar + 1, km = moff + nar;
+    const double dn = (double)w->N;
+    double ssr;
+    int rc = ar_moments(w, th, &ssr, s1);
+    if (rc != HN_OK)
+        return rc;
+    double S = 1.0, am = 0.0;
+    for (int k = 0; k < nar; k++)
+        S -= th[moff + k];
+    am = w->mom_m[0];
+    for (int k = 1; k < K; k++)
+        am -= th[moff + k - 1] * w->mom_m[k];
+    const double d = w->mom_c - (moff ? th[0] : 0.0), se = am + dn * S * d;
+    /* de/dmu = -S; de/dar_k = -(u_k + d); d2e/dmu dar_k = 1, else 0 */
+    for (int a = 0; a < km; a++)
+        for (int b = 0; b <= a; b++) {
+            double v;
+            if (moff && a == 0)
+                v = dn * S * S;
+            else if (moff && b == 0)
+                v = S * (w->mom_m[a] + dn * d) + se;
+            else {
+                const int j = a - moff + 1, k = b - moff + 1;
+                v = w->mom_G[j * K + k] + d * (w->mom_m[j] + w->mom_m[k]) + dn * d * d;
+            }
+            s2[a * (a + 1) / 2 + b] = v;
+        }
+    return HN_OK;
+}
+
 int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_spec *spec)
 {
     memset(w, 0, sizeof *w);

@@ -62,6 +62,13 @@ void fit_garch_work_free(fit_garch_work *w);
 int fit_garch_loglik(fit_garch_work *w, const double *theta, double *ll,
                      double *grad, double *scores, double *opg);
 
+/* For a mean without MA terms whose window sums W holds (w->mom): into
+ * S1[a] sum_t e_t de_t/dm_a and into S2 (lower triangle packed by rows,
+ * a >= b at a (a+1)/2 + b) sum_t (de_t/dm_a de_t/dm_b + e_t d2e_t/dm_a dm_b)
+ * over the mean parameters m at THETA, with no pass over the series.
+ * HN_OK, HN_EINVAL (no sums) or HN_EDOMAIN. */
+int fit_garch_mean_sums(const fit_garch_work *w, const double *theta, double *s1, double *s2);
+
 /* Most mean parameters fit_garch_hessian takes, and the parameter count
  * that allows. */
 #define FIT_GARCH_HESS_KM 4
