@@ -866,15 +866,20 @@ int fit_garch_estimate(const double *y, size_t n, const fit_spec *spec,
     c.gz = buf + 4 * np;
     double *th = buf + 5 * np;
 
-    /* Mean start (Hannan-Rissanen) and the residual variance there. */
+    /* Mean start (Hannan-Rissanen) and the residual variance there.  A
+     * long series without MA terms takes them from the subsample that
+     * two_stage fits first (their likelihood in the mean is close to
+     * quadratic); with MA terms from the whole series, whose start decides
+     * between the local optima of near-cancelling AR and MA roots. */
     double mstart[FIT_MAX_PARAMS], xbest[FIT_MAX_PARAMS];
-    rc = fit_arma_start(spec, y, n, mstart);
+    const size_t n0 = c.w.N >= LONG_N && spec->n_ma == 0 ? c.w.start + SUB_N : n;
+    rc = fit_arma_start(spec, y, n0, mstart);
     double s2 = vy;
     if (rc == HN_OK) {
         double ssr;
-        if (fit_arma_resid(c.w.aw, y, n, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
+        if (fit_arma_resid(c.w.aw, y, n0, mstart, NULL, NULL, &ssr, NULL) == HN_OK &&
             ssr > 0.0 && isfinite(ssr))
-            s2 = ssr / (double)c.w.N;
+            s2 = ssr / (double)(n0 - c.w.start);
     }
     int evaluations = 0;
     fit_optim_report rep;
