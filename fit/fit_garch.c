@@ -773,6 +773,10 @@ static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, d
         rc = fit_hessian_fd(np, xs, obj_x, &sub, H);
         if (rc == HN_OK && LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', np, H, np) != 0)
             rc = HN_ESINGULAR;
+        /* a flat direction (alpha1 at its bound, say): the score outer
+         * product, positive definite wherever the scores vary, instead */
+        if (rc == HN_ESINGULAR)
+            rc = opg_factor(&sub, xs, H);
     }
     *evals += (int)sub.w.passes;
     fit_garch_work_free(&sub.w);
