@@ -307,6 +307,9 @@ static int newton_polish(garch_ctx *c, double *x, double tol, double *gn)
     return HN_OK;
 }
 
+/* The gradient norm at which BFGS2 hands over to Newton steps. */
+#define BFGS_TOL 1e-4
+
 /* Candidate (alpha1, beta1) pairs for the starting points, tried in order. */
 static const double start_ab[][2] = {
     { 0.05, 0.90 }, { 0.10, 0.80 }, { 0.15, 0.65 }, { 0.03, 0.95 },
@@ -704,7 +707,25 @@ static int multistart(garch_ctx *c, const fit_options *o, const double *mstart, 
         double *x = xb + (size_t)k * np;
         memcpy(x, xs + (size_t)k * np, (size_t)np * sizeof *x);
         fit_optim_report rep;
-        int orc = bfgs_from(c, x, &oo, &rep);
+        /* BFGS2 to BFGS_TOL only: from there Newton steps with the Hessian
+         * converge quadratically where BFGS2 creeps; BFGS2 again to the full
+         * tolerance if they fall short of it. */
+        fit_optim_options o1 = oo;
+        const int two_phase = !c->rough && BFGS_TOL > oo.grad_tol;
+        if (two_phase)
+            o1.grad_tol = BFGS_TOL;
+        int orc = bfgs_from(c, x, &o1, &rep);
+        if (two_phase && (orc == HN_OK || orc == HN_ENOCONV)) {
+            rc = newton_polish(c, x, o->grad_tol, &rep.grad_norm);
+            if (rc != HN_OK)
+                break;
+            if (rep.grad_norm >= o->grad_tol) {
+                fit_optim_report r2;
+                orc = bfgs_from(c, x, &oo, &r2);
+                r2.iterations += rep.iterations;
+                rep = r2;
+            }
+        }
         if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL) {
             rc = orc;
             break;
