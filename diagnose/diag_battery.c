@@ -89,6 +89,7 @@ typedef int (*fn_sums_q)(const double *x, size_t n, int q, const diag_lag_sums *
 typedef int (*fn_centred_acf)(const double *x, const double *d, size_t n, const double *acf,
                               int nlags, double alpha, diag_test *out);
 typedef int (*fn_from_ms)(double mean, double sd, size_t n, double alpha, diag_test *out);
+typedef int (*fn_bare)(const double *d, size_t n, double alpha, diag_test *out);
 
 typedef enum {
     ARG_PLAIN,      /* (x, n, alpha, out) */
@@ -117,33 +118,35 @@ static const struct {
         fn_acf_plain plain;
         fn_sums_q sums;
     } a;
-    struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd */
+    struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd,
+                         * the centred copy without the practical size (set below) */
         fn_centred_acf dacf;
         fn_moments d;
         fn_from_ms ms;
+        fn_bare bare;
     } c;
 } CHECKS[] = {
     { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL, NULL },
                                     { .ms = diag_mean_ttest_from } },
     { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram },
                                     { .plain = diag_cum_periodogram_acf },
-                                    { .dacf = diag_cum_periodogram_centred } },
+                                    { .dacf = diag_cum_periodogram_centred, .bare = diag_cum_periodogram_bare } },
     { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { .sums = diag_arch_lm_sums },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL, NULL },
                                     { .d = diag_jarque_bera_centred } },
 };
@@ -164,6 +167,8 @@ _Static_assert(NCHECKS <= DIAG_MAX_TESTS, "the battery's result holds every chec
 static int run_check(size_t i, const run_ctx *c, diag_test *t)
 {
     double skew, kurt;
+    if (CHECKS[i].c.bare && c->d && c->acf)
+        return CHECKS[i].c.bare(c->d, c->n, c->alpha, t);
     if (CHECKS[i].c.dacf && c->d && c->acf)
         return CHECKS[i].c.dacf(c->x, c->d, c->n, c->acf, c->nacf, c->alpha, t);
     if (CHECKS[i].c.d && c->d)
@@ -508,7 +513,11 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         }
         for (size_t k = 0; k < NCHECKS; k++) {
             size_t i = COST_ORDER[k];
-            if (CHECKS[i].a.sums) {
+            if (CHECKS[i].c.bare) {
+                /* the longest check: started once the centred copy is there */
+#pragma omp task shared(ctx, out, rcs, rc_dev) depend(in: rc_dev)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            } else if (CHECKS[i].a.sums) {
 #pragma omp task shared(ctx, out, rcs, rc_acf2) depend(in: rc_acf2)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
             } else if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {

@@ -37,6 +37,9 @@ int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int n
  * read), in place of its own centred copy. */
 int diag_cum_periodogram_centred(const double *x, const double *d, size_t n, const double *acf,
                                  int nlags, double alpha, diag_test *out);
+/* The same from D alone, without the practical size (effect NAN, no
+ * label): for a caller that sets it from its own ACF. */
+int diag_cum_periodogram_bare(const double *d, size_t n, double alpha, diag_test *out);
 
 /* --- constant variance: global against local (diag_variance.c) --- */
 /* Equality of block variances (Brown-Forsythe: Levene on |x - block median|)

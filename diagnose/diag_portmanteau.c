@@ -281,7 +281,7 @@ double diag_kolmogorov_q(double l)
  * sqrt(M) + 0.12 + 0.11/sqrt(M), M = q-1 (Stephens, M. A. (1970), J. R.
  * Statist. Soc. B 32, 115-122; factor recalled from memory). */
 static int cum_periodogram(const double *x, const double *centred, size_t n, double alpha,
-                           diag_test *out, const double *acf_given, int acf_given_lags)
+                           diag_test *out, const double *acf_given, int acf_given_lags, int effect)
 {
     static const char name[] = "cum-periodogram";
     if (bad_alpha(alpha)) {
@@ -348,7 +348,7 @@ static int cum_periodogram(const double *x, const double *centred, size_t n, dou
              "(period %.1f), cumulative share %.3f against uniform %.3f",
              D, q, q, worst_j, n, (double)n / (double)worst_j, worst_c, worst_u);
     /* Practical size as for the portmanteau tests. */
-    {
+    if (effect) {
         int order = diag_share_order(n);
         double pacf[DIAG_SHARE_MAX], own[DIAG_SHARE_MAX];
         if (order >= 1 && order <= DIAG_SHARE_MAX && acf_given && acf_given_lags < order)
@@ -368,17 +368,22 @@ done:
 
 int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out)
 {
-    return cum_periodogram(x, NULL, n, alpha, out, NULL, 0);
+    return cum_periodogram(x, NULL, n, alpha, out, NULL, 0, 1);
 }
 
 int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int nlags,
                              double alpha, diag_test *out)
 {
-    return cum_periodogram(x, NULL, n, alpha, out, acf, nlags);
+    return cum_periodogram(x, NULL, n, alpha, out, acf, nlags, 1);
 }
 
 int diag_cum_periodogram_centred(const double *x, const double *d, size_t n, const double *acf,
                                  int nlags, double alpha, diag_test *out)
 {
-    return cum_periodogram(x, d, n, alpha, out, acf, nlags);
+    return cum_periodogram(x, d, n, alpha, out, acf, nlags, 1);
+}
+
+int diag_cum_periodogram_bare(const double *d, size_t n, double alpha, diag_test *out)
+{
+    return cum_periodogram(NULL, d, n, alpha, out, NULL, 0, 0);
 }

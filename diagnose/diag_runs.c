@@ -47,17 +47,45 @@ int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out)
         return HN_ENOMEM;
     }
 
-    /* Signs and runs counted without branches (the signs of residuals are
-     * as unpredictable as coin tosses); a value equal to the median keeps
-     * the previous sign for the run count. */
-    size_t n1 = 0, n2 = 0, runs = 0;
-    int prev = 0;
-    for (size_t i = 0; i < n; i++) {
-        int sign = (x[i] > med) - (x[i] < med);
-        n1 += sign > 0;
-        n2 += sign < 0;
-        runs += (sign != 0) & (sign != prev);
-        prev = sign != 0 ? sign : prev;
+    /* Runs of the signs with the zeros (values equal to the median)
+     * dropped: one for the first nonzero sign, one more for every change
+     * between neighbours that are both nonzero, and, across each stretch of
+     * zeros, one when the signs on either side differ.  The first three
+     * are counted two neighbour pairs at a time without branches (the
+     * signs of residuals are as unpredictable as coin tosses); the
+     * stretches of zeros are few and looked at one by one. */
+    v2d vm = { med, med };
+    v2l up = { 0, 0 }, down = { 0, 0 }, flips = { 0, 0 }, zeros = { 0, 0 };
+    size_t i = 1;
+    for (; i + 2 <= n; i += 2) {
+        v2d prev, cur;
+        memcpy(&prev, x + i - 1, sizeof prev);
+        memcpy(&cur, x + i, sizeof cur);
+        v2l u = cur > vm, l = cur < vm;
+        up += u;
+        down += l;
+        zeros += cur == vm;
+        flips += ((prev > vm) & l) | ((prev < vm) & u);
+    }
+    size_t n1 = (size_t)(-(up[0] + up[1])) + (x[0] > med), n2 = (size_t)(-(down[0] + down[1])) + (x[0] < med);
+    size_t nz = (size_t)(-(zeros[0] + zeros[1])) + (x[0] == med), runs = (size_t)(-(flips[0] + flips[1]));
+    for (; i < n; i++) {
+        n1 += x[i] > med;
+        n2 += x[i] < med;
+        nz += x[i] == med;
+        runs += ((x[i - 1] > med) & (x[i] < med)) | ((x[i - 1] < med) & (x[i] > med));
+    }
+    runs += n1 + n2 > 0;
+    for (size_t j = 0; nz > 0 && j < n; j++) {
+        if (x[j] != med)
+            continue;
+        size_t a = j, b = j;
+        while (b < n && x[b] == med)
+            b++;
+        nz -= b - a;
+        if (a > 0 && b < n)
+            runs += (x[a - 1] > med) != (x[b] > med);
+        j = b;
     }
     if (n1 < 2 || n2 < 2) {
         diag_test_invalid(out, name, DIAG_RANDOM, "too few values on one side of the median");

@@ -435,6 +435,46 @@ double diag_median_inplace(double *a, size_t n)
     return 0.5 * (lo + hi);
 }
 
+typedef double v2d __attribute__((vector_size(16)));
+typedef long long v2l __attribute__((vector_size(16)));
+
+/* Values A[I0..I1-1] within [LO, HI] appended to BUF from position M (the
+ * new M returned), those below LO counted into *BELOW.  Without branches
+ * (whether a value falls within is unpredictable): every value is stored
+ * at BUF[M] and M advances past the ones that fall within; the
+ * comparisons are made four at a time. */
+static size_t filter_range(const double *a, size_t i0, size_t i1, double lo, double hi,
+                           double *buf, size_t m, size_t *below)
+{
+    v2d vlo = { lo, lo }, vhi = { hi, hi };
+    v2l cnt = { 0, 0 };
+    size_t i = i0;
+    for (; i + 4 <= i1; i += 4) {
+        v2d u, v;
+        memcpy(&u, a + i, sizeof u);
+        memcpy(&v, a + i + 2, sizeof v);
+        cnt += (u < vlo) + (v < vlo);   /* a true comparison is -1 */
+        v2l iu = (u >= vlo) & (u <= vhi), iv = (v >= vlo) & (v <= vhi);
+        buf[m] = u[0];
+        m -= (size_t)iu[0];
+        buf[m] = u[1];
+        m -= (size_t)iu[1];
+        buf[m] = v[0];
+        m -= (size_t)iv[0];
+        buf[m] = v[1];
+        m -= (size_t)iv[1];
+    }
+    size_t b = (size_t)(-(cnt[0] + cnt[1]));
+    for (; i < i1; i++) {
+        double v = a[i];
+        b += v < lo;
+        buf[m] = v;
+        m += (v >= lo) & (v <= hi);
+    }
+    *below += b;
+    return m;
+}
+
 /* Below this length the median is a selection on a copy. */
 #define MEDIAN_DIRECT_N 4096
 /* Values filtered per check of the buffer's room. */
@@ -480,12 +520,8 @@ int diag_median(const double *a, size_t n, double *med)
             int room = 1;
             while (i < n && room) {
                 size_t e = i + MEDIAN_CHUNK < n ? i + MEDIAN_CHUNK : n;
-                for (; i < e; i++) {
-                    double v = a[i];
-                    below += v < lo;
-                    buf[m] = v;
-                    m += (v >= lo) & (v <= hi);
-                }
+                m = filter_range(a, i, e, lo, hi, buf, m, &below);
+                i = e;
                 room = m + MEDIAN_CHUNK <= cap;
             }
             if (room && below <= k1 && k2 < below + m) {

@@ -1,28 +1,56 @@
 /* diag_sum.c - blocked compensated sums: one block driver, a few term shapes.
  *
- * The four interleaved partial sums of a block are the lanes of two SSE2
- * vectors (GCC vector extension, lanes (0, 1) and (2, 3)); vector
- * arithmetic is elementwise IEEE arithmetic, so each lane does exactly
- * what a scalar accumulator would. */
+ * The four interleaved partial sums of a block are the lanes of one
+ * four-wide vector (GCC vector extension): one AVX register where the CPU
+ * has AVX2, two SSE2 registers (lanes (0, 1) and (2, 3)) otherwise, from
+ * the same text compiled twice.  Vector arithmetic is elementwise IEEE
+ * arithmetic, so each lane does exactly what a scalar accumulator would,
+ * and both builds give the same bits. */
 #include "diag_sum.h"
 
 #include <string.h>
 
+#pragma GCC diagnostic ignored "-Wpsabi"   /* the wide vectors stay inside this file */
+
 typedef double v2d __attribute__((vector_size(16)));
 typedef long long v2l __attribute__((vector_size(16)));
+typedef double v4 __attribute__((vector_size(32)));
 
-static inline __attribute__((always_inline)) v2d load2(const double *p)
+#define AI inline __attribute__((always_inline))
+
+static AI v2d load2(const double *p)
 {
     v2d v;
     memcpy(&v, p, sizeof v);
     return v;
 }
 
-static inline __attribute__((always_inline)) v2d splat(double a)
+static AI v2d splat(double a)
 {
     v2d v = { a, a };
     return v;
 }
+
+static AI v4 load4(const double *p)
+{
+    v4 v;
+    memcpy(&v, p, sizeof v);
+    return v;
+}
+
+static AI v4 splat4(double a)
+{
+    v4 v = { a, a, a, a };
+    return v;
+}
+
+#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+#define HAVE_AVX2_BUILD 1
+static int use_avx2(void)
+{
+    return __builtin_cpu_supports("avx2");
+}
+#endif
 
 enum { T_X, T_DOT, T_DEV, T_DEV2, T_CENTER2, T_P2, T_P3, T_P4 };
 
@@ -32,8 +60,7 @@ enum { T_X, T_DOT, T_DEV, T_DEV2, T_CENTER2, T_P2, T_P3, T_P4 };
  * over them has the digits of the same sum over that copy. */
 enum { S_RAW, S_SQ, S_CEN, S_SQCEN };
 
-static inline __attribute__((always_inline)) v2d
-src2(int src, const double *x, size_t i, v2d sm, v2d sc)
+static AI v2d src2(int src, const double *x, size_t i, v2d sm, v2d sc)
 {
     v2d v = load2(x + i);
     switch (src) {
@@ -44,8 +71,18 @@ src2(int src, const double *x, size_t i, v2d sm, v2d sc)
     return v;
 }
 
-static inline __attribute__((always_inline)) double
-src1(int src, const double *x, size_t i, double sm, double sc)
+static AI v4 src4(int src, const double *x, size_t i, v4 sm, v4 sc)
+{
+    v4 v = load4(x + i);
+    switch (src) {
+    case S_SQ:    return v * v;
+    case S_CEN:   return (v - sm) - sc;
+    case S_SQCEN: return (v * v - sm) - sc;
+    }
+    return v;
+}
+
+static AI double src1(int src, const double *x, size_t i, double sm, double sc)
 {
     double v = x[i];
     switch (src) {
@@ -56,15 +93,14 @@ src1(int src, const double *x, size_t i, double sm, double sc)
     return v;
 }
 
-/* Terms I, I+1 of shape WHAT on values V (compile-time constants after
+/* Terms I..I+3 of shape WHAT on values V (compile-time constants after
  * inlining); Y is read only by T_DOT. */
-static inline __attribute__((always_inline)) v2d
-term2(int what, v2d v, const double *y, size_t i, v2d m0, v2d c)
+static AI v4 term4(int what, v4 v, const double *y, size_t i, v4 m0, v4 c)
 {
-    v2d e;
+    v4 e;
     switch (what) {
     case T_X:       return v;
-    case T_DOT:     return v * load2(y + i);
+    case T_DOT:     return v * load4(y + i);
     case T_DEV:     return v - m0;
     case T_DEV2:    e = v - m0; return e * e;
     case T_CENTER2: e = (v - m0) - c; return e * e;
@@ -76,8 +112,7 @@ term2(int what, v2d v, const double *y, size_t i, v2d m0, v2d c)
 }
 
 /* The same for the single term I (the tail). */
-static inline __attribute__((always_inline)) double
-term1(int what, double v, const double *y, size_t i, double m0, double c)
+static AI double term1(int what, double v, const double *y, size_t i, double m0, double c)
 {
     double e;
     switch (what) {
@@ -95,17 +130,39 @@ term1(int what, double v, const double *y, size_t i, double m0, double c)
 
 /* Knuth's branch-free two-sum, lane by lane: S += V with the rounding
  * error added to C. */
-static inline __attribute__((always_inline)) void two_sum2(v2d *s, v2d *c, v2d v)
+static AI void two_sum2(v2d *s, v2d *c, v2d v)
 {
     v2d t = *s + v, z = t - *s;
     *c += (*s - (t - z)) + (v - z);
     *s = t;
 }
 
-/* A block's four lanes (a, b | e, f) added as the scalar code adds them. */
-static inline __attribute__((always_inline)) double lanes(v2d lo, v2d hi)
+static AI void two_sum4(v4 *s, v4 *c, v4 v)
+{
+    v4 t = *s + v, z = t - *s;
+    *c += (*s - (t - z)) + (v - z);
+    *s = t;
+}
+
+/* A block's four lanes added as (0 + 1) + (2 + 3). */
+static AI double lanes(v2d lo, v2d hi)
 {
     return (lo[0] + lo[1]) + (hi[0] + hi[1]);
+}
+
+static AI double lanes4(v4 a)
+{
+    return (a[0] + a[1]) + (a[2] + a[3]);
+}
+
+/* The lanes and error terms of a lane-compensated sum added to TOT, the
+ * four sums first. */
+static AI double comp_value(v4 s, v4 e, diag_ksum *tot)
+{
+    double parts[8] = { s[0], s[1], s[2], s[3], e[0], e[1], e[2], e[3] };
+    for (int l = 0; l < 8; l++)
+        diag_ksum_add(tot, parts[l]);
+    return diag_ksum_value(tot);
 }
 
 /* One sum of shape W over values from SRC, plain (COMP = 0: blocks of 64
@@ -114,84 +171,53 @@ static inline __attribute__((always_inline)) double lanes(v2d lo, v2d hi)
  * terms such as integers minus a mean round the same way again and again,
  * and that bias grows with n); the tail term by term; with D, D[i] =
  * (x_i - m0) - c written on the way. */
-static inline __attribute__((always_inline)) double
-sum1(int w, int comp, int src, const double *x, const double *y, size_t n, double m0, double c,
-     double *d)
+static AI double sum1(int w, int comp, int src, const double *x, const double *y, size_t n,
+                      double m0, double c, double *d)
 {
     diag_ksum tot = { 0.0, 0.0 };
-    v2d vm = splat(m0), vc = splat(c), zero = splat(0.0);
-    v2d s0 = zero, e0 = zero, s1 = zero, e1 = zero;
+    v4 vm = splat4(m0), vc = splat4(c), zero = splat4(0.0), s = zero, e = zero;
     size_t t = 0;
     for (; t + DIAG_SUM_BLOCK <= n; t += DIAG_SUM_BLOCK) {
-        v2d lo = zero, hi = zero;
+        v4 acc = zero;
         for (size_t i = t; i < t + DIAG_SUM_BLOCK; i += 4) {
-            v2d u = term2(w, src2(src, x, i, zero, zero), y, i, vm, vc);
-            v2d v = term2(w, src2(src, x, i + 2, zero, zero), y, i + 2, vm, vc);
-            if (comp) {
-                two_sum2(&s0, &e0, u);
-                two_sum2(&s1, &e1, v);
-            } else {
-                lo += u;
-                hi += v;
-            }
+            v4 u = term4(w, src4(src, x, i, zero, zero), y, i, vm, vc);
+            if (comp)
+                two_sum4(&s, &e, u);
+            else
+                acc += u;
             if (d) {
-                v2d du = (load2(x + i) - vm) - vc, dv = (load2(x + i + 2) - vm) - vc;
+                v4 du = (load4(x + i) - vm) - vc;
                 memcpy(d + i, &du, sizeof du);
-                memcpy(d + i + 2, &dv, sizeof dv);
             }
         }
         if (!comp)
-            diag_ksum_add(&tot, lanes(lo, hi));
+            diag_ksum_add(&tot, lanes4(acc));
     }
     for (; t < n; t++) {
         diag_ksum_add(&tot, term1(w, src1(src, x, t, 0.0, 0.0), y, t, m0, c));
         if (d)
             d[t] = (x[t] - m0) - c;
     }
-    if (comp) {
-        double parts[8] = { s0[0], s0[1], s1[0], s1[1], e0[0], e0[1], e1[0], e1[1] };
-        for (int l = 0; l < 8; l++)
-            diag_ksum_add(&tot, parts[l]);
-    }
-    return diag_ksum_value(&tot);
-}
-
-/* Lanes and error terms of one lane-compensated sum. */
-typedef struct { v2d s0, e0, s1, e1; } lanes2;
-
-static inline __attribute__((always_inline)) void lanes_add(lanes2 *l, v2d u, v2d v)
-{
-    two_sum2(&l->s0, &l->e0, u);
-    two_sum2(&l->s1, &l->e1, v);
-}
-
-static inline __attribute__((always_inline)) double lanes_value(const lanes2 *l, diag_ksum *tot)
-{
-    double parts[8] = { l->s0[0], l->s0[1], l->s1[0], l->s1[1],
-                        l->e0[0], l->e0[1], l->e1[0], l->e1[1] };
-    for (int i = 0; i < 8; i++)
-        diag_ksum_add(tot, parts[i]);
-    return diag_ksum_value(tot);
+    return comp ? comp_value(s, e, &tot) : diag_ksum_value(&tot);
 }
 
 /* Up to three compensated sums of shapes W0, W1, W2 (NW of them) over the
  * same values (from SRC with centre SM, SC) in one pass, each as sum1 with
  * COMP = 1 gives it. */
-static inline __attribute__((always_inline)) void
-sum3(int nw, int w0, int w1, int w2, int src, const double *x, size_t n, double m0, double sm,
-     double sc, double *out)
+static AI void sum3(int nw, int w0, int w1, int w2, int src, const double *x, size_t n, double m0,
+                    double sm, double sc, double *out)
 {
     diag_ksum t0 = { 0.0, 0.0 }, t1 = t0, t2 = t0;
-    v2d vm = splat(m0), zero = splat(0.0), vsm = splat(sm), vsc = splat(sc);
-    lanes2 l0 = { zero, zero, zero, zero }, l1 = l0, l2 = l0;
+    v4 vm = splat4(m0), zero = splat4(0.0), vsm = splat4(sm), vsc = splat4(sc);
+    v4 s0 = zero, e0 = zero, s1 = zero, e1 = zero, s2 = zero, e2 = zero;
     size_t t = 0;
     for (; t + 4 <= n; t += 4) {
-        v2d a = src2(src, x, t, vsm, vsc), b = src2(src, x, t + 2, vsm, vsc);
-        lanes_add(&l0, term2(w0, a, NULL, t, vm, zero), term2(w0, b, NULL, t + 2, vm, zero));
+        v4 a = src4(src, x, t, vsm, vsc);
+        two_sum4(&s0, &e0, term4(w0, a, NULL, t, vm, zero));
         if (nw > 1)
-            lanes_add(&l1, term2(w1, a, NULL, t, vm, zero), term2(w1, b, NULL, t + 2, vm, zero));
+            two_sum4(&s1, &e1, term4(w1, a, NULL, t, vm, zero));
         if (nw > 2)
-            lanes_add(&l2, term2(w2, a, NULL, t, vm, zero), term2(w2, b, NULL, t + 2, vm, zero));
+            two_sum4(&s2, &e2, term4(w2, a, NULL, t, vm, zero));
     }
     for (; t < n; t++) {
         double v = src1(src, x, t, sm, sc);
@@ -201,32 +227,83 @@ sum3(int nw, int w0, int w1, int w2, int src, const double *x, size_t n, double 
         if (nw > 2)
             diag_ksum_add(&t2, term1(w2, v, NULL, t, m0, 0.0));
     }
-    out[0] = lanes_value(&l0, &t0);
+    out[0] = comp_value(s0, e0, &t0);
     if (nw > 1)
-        out[1] = lanes_value(&l1, &t1);
+        out[1] = comp_value(s1, e1, &t1);
     if (nw > 2)
-        out[2] = lanes_value(&l2, &t2);
+        out[2] = comp_value(s2, e2, &t2);
+}
+
+/* The forms the entry points take, each compiled for both builds. */
+enum { F_X, F_SQ, F_DOT, F_CENTER, F_DEV2, F_DEV2_SQ, F_MOM, F_MOM_OF };
+
+static AI void sum_form(int f, const double *x, const double *y, size_t n, double m0, double c,
+                        double *d, double *out)
+{
+    switch (f) {
+    case F_X:       out[0] = sum1(T_X, 0, S_RAW, x, NULL, n, 0.0, 0.0, NULL); break;
+    case F_SQ:      out[0] = sum1(T_X, 0, S_SQ, x, NULL, n, 0.0, 0.0, NULL); break;
+    case F_DOT:     out[0] = sum1(T_DOT, 0, S_RAW, x, y, n, 0.0, 0.0, NULL); break;
+    case F_CENTER:  out[0] = sum1(T_CENTER2, 1, S_RAW, x, NULL, n, m0, c, d); break;
+    case F_DEV2:    sum3(2, T_DEV, T_DEV2, T_DEV2, S_RAW, x, n, m0, 0.0, 0.0, out); break;
+    case F_DEV2_SQ: sum3(2, T_DEV, T_DEV2, T_DEV2, S_SQ, x, n, m0, 0.0, 0.0, out); break;
+    case F_MOM:     sum3(3, T_P2, T_P3, T_P4, S_RAW, x, n, 0.0, 0.0, 0.0, out); break;
+    case F_MOM_OF:  sum3(3, T_P2, T_P3, T_P4, S_CEN, x, n, 0.0, m0, c, out); break;
+    }
+}
+
+static void sum_base(int f, const double *x, const double *y, size_t n, double m0, double c,
+                     double *d, double *out)
+{
+    sum_form(f, x, y, n, m0, c, d, out);
+}
+
+#ifdef HAVE_AVX2_BUILD
+__attribute__((target("avx2"))) static void
+sum_avx2(int f, const double *x, const double *y, size_t n, double m0, double c, double *d,
+         double *out)
+{
+    sum_form(f, x, y, n, m0, c, d, out);
+}
+#endif
+
+static void sum_run(int f, const double *x, const double *y, size_t n, double m0, double c,
+                    double *d, double *out)
+{
+#ifdef HAVE_AVX2_BUILD
+    if (use_avx2()) {
+        sum_avx2(f, x, y, n, m0, c, d, out);
+        return;
+    }
+#endif
+    sum_base(f, x, y, n, m0, c, d, out);
 }
 
 double diag_sum(const double *x, size_t n)
 {
-    return sum1(T_X, 0, S_RAW, x, NULL, n, 0.0, 0.0, NULL);
+    double s;
+    sum_run(F_X, x, NULL, n, 0.0, 0.0, NULL, &s);
+    return s;
 }
 
 double diag_sum_sq(const double *x, size_t n)
 {
-    return sum1(T_X, 0, S_SQ, x, NULL, n, 0.0, 0.0, NULL);
+    double s;
+    sum_run(F_SQ, x, NULL, n, 0.0, 0.0, NULL, &s);
+    return s;
 }
 
 double diag_sum_dot(const double *p, const double *q, size_t n)
 {
-    return sum1(T_DOT, 0, S_RAW, p, q, n, 0.0, 0.0, NULL);
+    double s;
+    sum_run(F_DOT, p, q, n, 0.0, 0.0, NULL, &s);
+    return s;
 }
 
 void diag_sum_dev2(const double *x, size_t n, double m, double *s1, double *s2)
 {
     double s[2];
-    sum3(2, T_DEV, T_DEV2, T_DEV2, S_RAW, x, n, m, 0.0, 0.0, s);
+    sum_run(F_DEV2, x, NULL, n, m, 0.0, NULL, s);
     *s1 = s[0];
     *s2 = s[1];
 }
@@ -234,24 +311,26 @@ void diag_sum_dev2(const double *x, size_t n, double m, double *s1, double *s2)
 void diag_sum_dev2_sq(const double *x, size_t n, double m, double *s1, double *s2)
 {
     double s[2];
-    sum3(2, T_DEV, T_DEV2, T_DEV2, S_SQ, x, n, m, 0.0, 0.0, s);
+    sum_run(F_DEV2_SQ, x, NULL, n, m, 0.0, NULL, s);
     *s1 = s[0];
     *s2 = s[1];
 }
 
 double diag_sum_center(const double *x, size_t n, double m0, double c, double *d)
 {
-    return sum1(T_CENTER2, 1, S_RAW, x, NULL, n, m0, c, d);
+    double s;
+    sum_run(F_CENTER, x, NULL, n, m0, c, d, &s);
+    return s;
 }
 
 void diag_sum_moments(const double *d, size_t n, double s[3])
 {
-    sum3(3, T_P2, T_P3, T_P4, S_RAW, d, n, 0.0, 0.0, 0.0, s);
+    sum_run(F_MOM, d, NULL, n, 0.0, 0.0, NULL, s);
 }
 
 void diag_sum_moments_of(const double *x, size_t n, double m0, double c, double s[3])
 {
-    sum3(3, T_P2, T_P3, T_P4, S_CEN, x, n, 0.0, m0, c, s);
+    sum_run(F_MOM_OF, x, NULL, n, m0, c, NULL, s);
 }
 
 double diag_max_abs(const double *x, size_t n)
@@ -298,6 +377,8 @@ int diag_all_finite(const double *x, size_t n)
  * its neighbours stay in the first-level cache while every lag reads them.
  * The series is read through a window W holding d[OFF ...]. */
 #define LAG_GROUP 8
+/* Without AVX, half as many: two registers a lag, sixteen in all. */
+#define LAG_GROUP_SSE2 4
 /* Blocks per window of the streamed form (16 KB of the series). */
 #define LAG_CHUNK 32
 
@@ -334,9 +415,9 @@ static void lagged_blocks_sse2(const double *w, size_t off, size_t n, size_t K, 
         size_t room = n - (j + 1) * DIAG_SUM_BLOCK, kv = K < room ? K : room;
         double b[LAG_GROUP];
         size_t k = 1;
-        for (; k + LAG_GROUP - 1 <= kv; k += LAG_GROUP) {
-            group_sse2(p, k, LAG_GROUP, b);
-            for (int l = 0; l < LAG_GROUP; l++)
+        for (; k + LAG_GROUP_SSE2 - 1 <= kv; k += LAG_GROUP_SSE2) {
+            group_sse2(p, k, LAG_GROUP_SSE2, b);
+            for (int l = 0; l < LAG_GROUP_SSE2; l++)
                 diag_ksum_add(&tot[k - 1 + (size_t)l], b[l]);
         }
         for (; k <= kv; k++) {
@@ -346,10 +427,10 @@ static void lagged_blocks_sse2(const double *w, size_t off, size_t n, size_t K, 
     }
 }
 
-#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
+#ifdef HAVE_AVX2_BUILD
 /* The same with the four lanes of a block in one AVX register: the lanes
  * are the same four partial sums, so the digits are the same. */
-typedef double v4d __attribute__((vector_size(32)));
+typedef v4 v4d;
 
 __attribute__((target("avx2"))) static inline __attribute__((always_inline)) void
 group_avx2(const double *p, size_t k0, const int g, double *out)
@@ -404,8 +485,8 @@ lagged_blocks_avx2(const double *w, size_t off, size_t n, size_t K, size_t j0, s
 static void lagged_blocks(const double *w, size_t off, size_t n, size_t K, size_t j0, size_t j1,
                           diag_ksum *tot)
 {
-#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
-    if (__builtin_cpu_supports("avx2")) {
+#ifdef HAVE_AVX2_BUILD
+    if (use_avx2()) {
         lagged_blocks_avx2(w, off, n, K, j0, j1, tot);
         return;
     }
