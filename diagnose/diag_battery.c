@@ -418,12 +418,6 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         return HN_EINVAL;
     if (n < 8)
         return HN_ESHORT;
-    int rc = diag_mean_sd(x, n, &out->mean, &out->sd);
-    if (rc != HN_OK)
-        return rc;
-    if (!(out->sd > 0.0))
-        return HN_ECONST;
-
     out->n = n;
     out->alpha = opt->alpha;
     out->band = gsl_cdf_ugaussian_Qinv(opt->alpha / 2.0) / sqrt((double)n);
@@ -488,23 +482,37 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         diag_battery_free(out);
         return HN_ENOMEM;
     }
+    /* the mean and sd, and on the direct route the centred copy from the
+     * same mean, before anything else: every check waits for one or the
+     * other */
+    int rc = dev ? diag_center_ss_sd(x, n, dev, &ss0, &out->mean, &out->sd)
+                 : diag_mean_sd(x, n, &out->mean, &out->sd);
+    if (rc == HN_OK && !(out->sd > 0.0))
+        rc = HN_ECONST;
+    if (rc != HN_OK) {
+        free(dev);
+        diag_battery_free(out);
+        return rc;
+    }
     diag_lag_sums sums2;
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
                     share_x ? out->acf : NULL, NULL, (int)top, top2, &sums2, NULL,
                     NULL, out->mean, out->sd };
-    int rc_dev = HN_OK, rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
+    int rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
     double *acf2 = NULL, *lag2 = NULL;
+    ctx.d = dev;
     int par = !omp_in_parallel() && n >= PARALLEL_MIN_N;
 #pragma omp parallel if (par)
 #pragma omp single
     {
-#pragma omp task shared(rc_dev, dev, ss0, ctx) depend(out: rc_dev)
-        if (dev) {
-            rc_dev = diag_center_ss(x, n, dev, &ss0);
-            ctx.d = rc_dev == HN_OK ? dev : NULL;
-        }
-#pragma omp task shared(rc_acf, rc_dev, out, ctx, ss0) depend(in: rc_dev) depend(out: rc_acf)
-        rc_acf = rc_dev == HN_OK ? battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out) : rc_dev;
+        /* the longest check first (it needs only the centred copy) */
+        for (size_t i = 0; i < NCHECKS; i++)
+            if (CHECKS[i].c.bare) {
+#pragma omp task shared(ctx, out, rcs)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            }
+#pragma omp task shared(rc_acf, out, ctx, ss0) depend(out: rc_acf)
+        rc_acf = battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out);
 #pragma omp task shared(rc_acf2, acf2, lag2, sums2, ctx) depend(out: rc_acf2)
         {
             rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2, &sums2, &lag2) : HN_OK;
@@ -514,18 +522,13 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         for (size_t k = 0; k < NCHECKS; k++) {
             size_t i = COST_ORDER[k];
             if (CHECKS[i].c.bare) {
-                /* the longest check: started once the centred copy is there */
-#pragma omp task shared(ctx, out, rcs, rc_dev) depend(in: rc_dev)
-                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+                continue;
             } else if (CHECKS[i].a.sums) {
 #pragma omp task shared(ctx, out, rcs, rc_acf2) depend(in: rc_acf2)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
             } else if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
 #pragma omp task shared(ctx, out, rcs, rc_acf, rc_acf2) depend(in: rc_acf, rc_acf2)
                 rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
-            } else if (CHECKS[i].c.d) {
-#pragma omp task shared(ctx, out, rcs, rc_dev) depend(in: rc_dev)
-                rcs[i] = run_check(i, &ctx, &out->tests[i]);
             } else {
 #pragma omp task shared(ctx, out, rcs)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);

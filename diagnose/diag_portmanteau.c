@@ -306,19 +306,15 @@ static int cum_periodogram(const double *x, const double *centred, size_t n, dou
         diag_test_invalid(out, name, DIAG_SERIAL, "a value is not finite");
         goto done;
     }
-    rc = diag_periodogram(d, n, q, I);
+    double total = 0.0;
+    rc = diag_periodogram(d, n, q, I, &total);
     if (rc != HN_OK) {
         diag_test_invalid(out, name, DIAG_SERIAL,
                           rc == HN_ENOMEM ? "out of memory" : "the Fourier transform failed");
         rc = rc == HN_ENOMEM ? HN_ENOMEM : HN_EINVAL;
         goto done;
     }
-    double total = 0.0, comp = 0.0;
-    for (size_t j = 1; j <= q; j++) {
-        double y = I[j - 1] - comp, t = total + y;
-        comp = (t - total) - y;
-        total = t;
-    }
+    /* TOTAL: the compensated sum of the ordinates, formed with them */
     if (!(total > 0.0) || !isfinite(total)) {
         rc = HN_EINVAL;
         diag_test_invalid(out, name, DIAG_SERIAL, "the values are constant");

@@ -131,6 +131,32 @@ int diag_center_ss(const double *x, size_t n, double *d, double *ss)
     return HN_OK;
 }
 
+int diag_center_ss_sd(const double *x, size_t n, double *d, double *ss, double *mean, double *sd)
+{
+    if (n < 2)
+        return HN_ESHORT;
+    if (diag_max_abs(x, n) > 0x1p500) {
+        /* diag_mean_sd's scaled route, then the centring apart */
+        int rc = diag_mean_sd(x, n, mean, sd);
+        return rc == HN_OK ? diag_center_ss(x, n, d, ss) : rc;
+    }
+    double m0, c, s1, s2;
+    int rc = mean_parts_of(x, n, 0, &m0, &c, &s1, &s2);
+    if (rc != HN_OK)
+        return rc;
+    /* as diag_mean_sd forms them from the same parts */
+    double v = (s2 - c * s1) / (double)(n - 1);
+    if (!isfinite(v))
+        return HN_ENUMERIC;
+    *mean = m0 + c;
+    *sd = sqrt(v > 0.0 ? v : 0.0);
+    double w = diag_sum_center(x, n, m0, c, d);
+    if (!isfinite(w))
+        return HN_ENUMERIC;
+    *ss = w;
+    return HN_OK;
+}
+
 int diag_center_moments(const double *x, size_t n, double s[3])
 {
     double m0, c;
@@ -435,36 +461,35 @@ double diag_median_inplace(double *a, size_t n)
     return 0.5 * (lo + hi);
 }
 
-typedef double v2d __attribute__((vector_size(16)));
-typedef long long v2l __attribute__((vector_size(16)));
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
 
 /* Values A[I0..I1-1] within [LO, HI] appended to BUF from position M (the
  * new M returned), those below LO counted into *BELOW.  Without branches
  * (whether a value falls within is unpredictable): every value is stored
- * at BUF[M] and M advances past the ones that fall within; the
- * comparisons are made four at a time. */
+ * at BUF[M] and M advances past the ones that fall within; with SSE2 the
+ * comparisons are made two at a time. */
 static size_t filter_range(const double *a, size_t i0, size_t i1, double lo, double hi,
                            double *buf, size_t m, size_t *below)
 {
-    v2d vlo = { lo, lo }, vhi = { hi, hi };
-    v2l cnt = { 0, 0 };
-    size_t i = i0;
-    for (; i + 4 <= i1; i += 4) {
-        v2d u, v;
-        memcpy(&u, a + i, sizeof u);
-        memcpy(&v, a + i + 2, sizeof v);
-        cnt += (u < vlo) + (v < vlo);   /* a true comparison is -1 */
-        v2l iu = (u >= vlo) & (u <= vhi), iv = (v >= vlo) & (v <= vhi);
-        buf[m] = u[0];
-        m -= (size_t)iu[0];
-        buf[m] = u[1];
-        m -= (size_t)iu[1];
-        buf[m] = v[0];
-        m -= (size_t)iv[0];
-        buf[m] = v[1];
-        m -= (size_t)iv[1];
+    size_t i = i0, b = 0;
+#if defined(__SSE2__)
+    __m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi);
+    __m128i cnt = _mm_setzero_si128();
+    for (; i + 2 <= i1; i += 2) {
+        __m128d u = _mm_loadu_pd(a + i);
+        cnt = _mm_sub_epi64(cnt, _mm_castpd_si128(_mm_cmplt_pd(u, vlo)));
+        int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(u, vlo), _mm_cmple_pd(u, vhi)));
+        buf[m] = a[i];
+        m += (size_t)(in & 1);
+        buf[m] = a[i + 1];
+        m += (size_t)(in >> 1);
     }
-    size_t b = (size_t)(-(cnt[0] + cnt[1]));
+    long long c[2];
+    _mm_storeu_si128((__m128i *)c, cnt);
+    b = (size_t)(c[0] + c[1]);
+#endif
     for (; i < i1; i++) {
         double v = a[i];
         b += v < lo;

@@ -30,6 +30,10 @@ int diag_center(const double *x, size_t n, double *d);
 /* The same deviations and, in the same pass, SS = sum_i D[i]^2 (compensated),
  * exactly as diag_acf forms them.  HN_OK, HN_ESHORT, HN_ENUMERIC. */
 int diag_center_ss(const double *x, size_t n, double *d, double *ss);
+/* Both at once: D and SS as diag_center_ss gives them and MEAN and SD as
+ * diag_mean_sd does, the mean found once.  HN_OK, HN_ESHORT (n < 2),
+ * HN_ENUMERIC, HN_ENOMEM. */
+int diag_center_ss_sd(const double *x, size_t n, double *d, double *ss, double *mean, double *sd);
 /* S[0..2] = sum_i d_i^2, d_i^3, d_i^4 of the same deviations, not stored:
  * the digits of diag_center followed by diag_sum_moments.  HN_OK,
  * HN_ESHORT, HN_ENUMERIC. */

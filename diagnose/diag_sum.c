@@ -13,7 +13,9 @@
 #pragma GCC diagnostic ignored "-Wpsabi"   /* the wide vectors stay inside this file */
 
 typedef double v2d __attribute__((vector_size(16)));
-typedef long long v2l __attribute__((vector_size(16)));
+/* lanes of long, the type a comparison of two v2d gives (0 or -1): with
+ * long long each lane would be converted one at a time */
+typedef long v2l __attribute__((vector_size(16)));
 typedef double v4 __attribute__((vector_size(32)));
 
 #define AI inline __attribute__((always_inline))
