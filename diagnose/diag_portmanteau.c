@@ -320,19 +320,23 @@ static int cum_periodogram(const double *x, const double *centred, size_t n, dou
         diag_test_invalid(out, name, DIAG_SERIAL, "the values are constant");
         goto done;
     }
-    double cum = 0.0, D = 0.0, worst_c = 0.0, worst_u = 0.0;
+    double cum = 0.0, D = 0.0, worst_c = 0.0, worst_u = 0.0, below = 0.0;
     size_t worst_j = 1;
     for (size_t j = 1; j <= M; j++) {
+        /* BELOW: (j-1)/M, the quotient of the step before (the same bits,
+         * one division fewer a step) */
+        double above = (double)j / (double)M;
         cum += I[j - 1];
         double c = cum / total;
-        double dplus = (double)j / (double)M - c, dminus = c - (double)(j - 1) / (double)M;
+        double dplus = above - c, dminus = c - below;
         double dj = dplus > dminus ? dplus : dminus;
         if (dj > D) {
             D = dj;
             worst_j = j;
             worst_c = c;
-            worst_u = dplus > dminus ? (double)j / (double)M : (double)(j - 1) / (double)M;
+            worst_u = dplus > dminus ? above : below;
         }
+        below = above;
     }
     double sm = sqrt((double)M);
     double lambda = (sm + 0.12 + 0.11 / sm) * D;

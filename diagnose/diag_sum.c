@@ -517,30 +517,20 @@ void diag_sum_lagged(const double *d, size_t n, int maxlag, double *s)
 }
 
 /* Values I0 .. I1 - 1 of the centred series from X into W (W[0] = d_I0). */
-static inline __attribute__((always_inline)) void
-center_fill(int square, const double *x, size_t i0, size_t i1, double m0, double c, double *w)
+static AI void center_fill(int square, const double *x, size_t i0, size_t i1, double m0, double c,
+                           double *w)
 {
-    v2d vm = splat(m0), vc = splat(c);
+    v4 vm = splat4(m0), vc = splat4(c);
     size_t i = i0;
-    if (square) {
-        for (; i + 2 <= i1; i += 2) {
-            v2d v = src2(S_SQCEN, x, i, vm, vc);
-            memcpy(w + (i - i0), &v, sizeof v);
-        }
-        for (; i < i1; i++)
-            w[i - i0] = src1(S_SQCEN, x, i, m0, c);
-    } else {
-        for (; i + 2 <= i1; i += 2) {
-            v2d v = src2(S_CEN, x, i, vm, vc);
-            memcpy(w + (i - i0), &v, sizeof v);
-        }
-        for (; i < i1; i++)
-            w[i - i0] = src1(S_CEN, x, i, m0, c);
+    for (; i + 4 <= i1; i += 4) {
+        v4 v = src4(square ? S_SQCEN : S_CEN, x, i, vm, vc);
+        memcpy(w + (i - i0), &v, sizeof v);
     }
+    for (; i < i1; i++)
+        w[i - i0] = src1(square ? S_SQCEN : S_CEN, x, i, m0, c);
 }
 
-static inline __attribute__((always_inline)) double
-center_one(int square, const double *x, size_t i, double m0, double c)
+static AI double center_one(int square, const double *x, size_t i, double m0, double c)
 {
     return square ? src1(S_SQCEN, x, i, m0, c) : src1(S_CEN, x, i, m0, c);
 }
@@ -549,14 +539,15 @@ center_one(int square, const double *x, size_t i, double m0, double c)
  * centred into a buffer on the stack, their squares added to the lanes of
  * the lag-0 sum in the order diag_sum_center adds them (full blocks of 64
  * in four compensated lanes, then the tail term by term), and every lag's
- * blocks taken from the buffer. */
-static void center_lagged(int square, const double *x, size_t n, double m0, double c, int maxlag,
-                          double *ss, double *s)
+ * blocks taken from the buffer.  Compiled for both builds as the sums
+ * above. */
+static AI void center_lagged(int square, const double *x, size_t n, double m0, double c,
+                             int maxlag, double *ss, double *s)
 {
     double w[LAG_CHUNK * DIAG_SUM_BLOCK + DIAG_SUM_MAXLAG];
     diag_ksum tot[DIAG_SUM_MAXLAG], t0 = { 0.0, 0.0 };
     size_t K = (size_t)maxlag, nb1 = lag_blocks(n);
-    v2d zero = splat(0.0), s0 = zero, e0 = zero, s1 = zero, e1 = zero;
+    v4 s0 = splat4(0.0), e0 = s0;
     for (size_t k = 0; k < K; k++)
         tot[k].s = tot[k].c = 0.0;
     for (size_t j0 = 0; j0 < nb1; j0 += LAG_CHUNK) {
@@ -566,9 +557,8 @@ static void center_lagged(int square, const double *x, size_t n, double m0, doub
             end = n;
         center_fill(square, x, off, end, m0, c, w);
         for (size_t i = 0; i < (j1 - j0) * DIAG_SUM_BLOCK; i += 4) {
-            v2d u = load2(w + i), v = load2(w + i + 2);
-            two_sum2(&s0, &e0, u * u);
-            two_sum2(&s1, &e1, v * v);
+            v4 u = load4(w + i);
+            two_sum4(&s0, &e0, u * u);
         }
         lagged_blocks(w, off, n, K, j0, j1, tot);
     }
@@ -577,19 +567,15 @@ static void center_lagged(int square, const double *x, size_t n, double m0, doub
     for (; t + DIAG_SUM_BLOCK <= n; t += DIAG_SUM_BLOCK) {
         center_fill(square, x, t, t + DIAG_SUM_BLOCK, m0, c, w);
         for (size_t i = 0; i < DIAG_SUM_BLOCK; i += 4) {
-            v2d u = load2(w + i), v = load2(w + i + 2);
-            two_sum2(&s0, &e0, u * u);
-            two_sum2(&s1, &e1, v * v);
+            v4 u = load4(w + i);
+            two_sum4(&s0, &e0, u * u);
         }
     }
     for (; t < n; t++) {
         double e = center_one(square, x, t, m0, c);
         diag_ksum_add(&t0, e * e);
     }
-    double parts[8] = { s0[0], s0[1], s1[0], s1[1], e0[0], e0[1], e1[0], e1[1] };
-    for (int l = 0; l < 8; l++)
-        diag_ksum_add(&t0, parts[l]);
-    *ss = diag_ksum_value(&t0);
+    *ss = comp_value(s0, e0, &t0);
     for (size_t k = 1; k <= K; k++) {
         for (size_t u = k + (n - k) / DIAG_SUM_BLOCK * DIAG_SUM_BLOCK; u < n; u++)
             diag_ksum_add(&tot[k - 1], center_one(square, x, u, m0, c) * center_one(square, x, u - k, m0, c));
@@ -597,11 +583,35 @@ static void center_lagged(int square, const double *x, size_t n, double m0, doub
     }
 }
 
-void diag_sum_center_lagged(const double *x, size_t n, int square, double m0, double c,
-                            int maxlag, double *ss, double *s)
+static void center_lagged_base(int square, const double *x, size_t n, double m0, double c,
+                               int maxlag, double *ss, double *s)
 {
     if (square)
         center_lagged(1, x, n, m0, c, maxlag, ss, s);
     else
         center_lagged(0, x, n, m0, c, maxlag, ss, s);
+}
+
+#ifdef HAVE_AVX2_BUILD
+__attribute__((target("avx2"))) static void
+center_lagged_avx2(int square, const double *x, size_t n, double m0, double c, int maxlag,
+                   double *ss, double *s)
+{
+    if (square)
+        center_lagged(1, x, n, m0, c, maxlag, ss, s);
+    else
+        center_lagged(0, x, n, m0, c, maxlag, ss, s);
+}
+#endif
+
+void diag_sum_center_lagged(const double *x, size_t n, int square, double m0, double c,
+                            int maxlag, double *ss, double *s)
+{
+#ifdef HAVE_AVX2_BUILD
+    if (use_avx2()) {
+        center_lagged_avx2(square, x, n, m0, c, maxlag, ss, s);
+        return;
+    }
+#endif
+    center_lagged_base(square, x, n, m0, c, maxlag, ss, s);
 }

@@ -311,6 +311,28 @@ static void describe_blocks(const double *bm, const double *bss, const size_t *s
                  which == 0 ? "mean" : "sd", rule, nb);
 }
 
+typedef double v2d __attribute__((vector_size(16)));
+typedef long v2l __attribute__((vector_size(16)));
+
+/* OUT[i] = X[i] - C, or |X[i] - C| with ABS (OUT may equal X), two values
+ * at a time (|.| by clearing the sign bit, as fabs does). */
+static void shift_abs(const double *x, size_t n, double c, int abs, double *out)
+{
+    const v2d vc = { c, c };
+    const v2l mag = { 0x7fffffffffffffffL, 0x7fffffffffffffffL };
+    size_t i = 0;
+    for (; i + 2 <= n; i += 2) {
+        v2d v;
+        memcpy(&v, x + i, sizeof v);
+        v -= vc;
+        if (abs)
+            v = (v2d)((v2l)v & mag);
+        memcpy(out + i, &v, sizeof v);
+    }
+    for (; i < n; i++)
+        out[i] = abs ? fabs(x[i] - c) : x[i] - c;
+}
+
 /* The block sums, one block at a time in SCRATCH (room for the largest
  * block, which stays in cache for every pass over it): the shifted values
  * d = x - x_0, their mean BM[g] and sum of squares BSS[g] and, with WHICH
@@ -323,15 +345,13 @@ static int block_pass(const double *x, const size_t *sizes, size_t nb, int which
     const double *p = x, x0 = x[0];
     for (size_t g = 0; g < nb; g++) {
         size_t m = sizes[g];
-        for (size_t i = 0; i < m; i++)
-            scratch[i] = p[i] - x0;
+        shift_abs(p, m, x0, 0, scratch);
         bm[g] = mean_ss(scratch, m, &bss[g]);
         if (which) {
             double med;
             if (diag_median(scratch, m, &med) != HN_OK)
                 return HN_ENOMEM;
-            for (size_t i = 0; i < m; i++)
-                scratch[i] = fabs(scratch[i] - med);
+            shift_abs(scratch, m, med, 1, scratch);
             zm[g] = mean_ss(scratch, m, &zs[g]);
         }
         p += m;
