@@ -1,4 +1,5 @@
 /* diag_arch.c - volatility clustering: McLeod-Li on squares and Engle's ARCH-LM. */
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -8,22 +9,8 @@
 
 #include "diag_checks.h"
 #include "diag_stats.h"
+#include "diag_sum.h"
 #include "hn_status.h"
-
-#define COLUMN_BLOCK 8   /* column sums computed side by side in one sweep */
-
-/* Squares of the series as given (SQ: n values, caller allocates); the
- * checks run on residuals, and a mean away from zero is the mean check's
- * business.  HN_ENUMERIC when a value is not finite. */
-static int squares(const double *x, size_t n, double *sq)
-{
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(x[i]))
-            return HN_ENUMERIC;
-        sq[i] = x[i] * x[i];
-    }
-    return HN_OK;
-}
 
 /* McLeod-Li test: the Ljung-Box statistic of the squared series,
  * Q = n (n+2) sum_{k=1..m} r_k^2 / (n-k), r_k the autocorrelations of x^2
@@ -75,27 +62,21 @@ int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *ou
         diag_test_invalid(out, name, DIAG_VOLATILITY, "too few observations for the lags asked");
         return HN_ESHORT;
     }
-    double *sq = malloc(n * sizeof *sq);
     double *r = malloc((size_t)m * sizeof *r);
-    if (!sq || !r) {
-        free(sq);
-        free(r);
+    if (!r) {
         diag_test_invalid(out, name, DIAG_VOLATILITY, "out of memory");
         return HN_ENOMEM;
     }
-    int rc = squares(x, n, sq);
-    if (rc == HN_OK)
-        rc = diag_acf(sq, n, m, r);
+    /* the squares formed on the way (a non-finite value makes their sum so) */
+    int rc = diag_acf_sq(x, n, m, r);
     if (rc != HN_OK) {
         diag_test_invalid(out, name, DIAG_VOLATILITY,
                           rc == HN_ECONST ? "the squared values are all equal"
                                           : "autocorrelations of the squares not computable");
-        free(sq);
         free(r);
         return rc;
     }
     mcleod_fill(r, n, m, alpha, out);
-    free(sq);
     free(r);
     return HN_OK;
 }
@@ -120,322 +101,155 @@ int diag_mcleod_li_acf(const double *acf2, int nlags, size_t n, int m, double al
     return HN_OK;
 }
 
-/* Sums over t = q..n-1 of sq[t - j0 - i] (M NULL) or of sq[t - j0 - i] -
- * M[i] into OUT[i], i < CNT: each a plain sum in the order of t, the CNT of
- * them side by side in one sweep. */
-static inline __attribute__((always_inline)) void
-column_sweep(const double *sq, size_t n, size_t q, size_t j0, const double *m, double *out,
-             const size_t cnt)
+/* ARCH-LM's regression from sums over the whole series.  The regressors
+ * are lags of one series, so the cross-products over the rows t = q..n-1
+ * follow from q + 1 lagged sums of the centred squares d_u (diag_lag_sums_of,
+ * the sums McLeod-Li's autocorrelations are made of) less O(q^2) products
+ * of the first and last q values: for columns j <= k (column 0 the
+ * regressand y_t, column j the lag y_{t-j}), lag difference l = k - j,
+ *     S_jk = sum_t d_{t-j} d_{t-k} = L_l - sum_{u=l}^{q-j-1} d_u d_{u-l}
+ *                                        - sum_{u=n-j}^{n-1} d_u d_{u-l},
+ * and with W_j the sum of column j's values (the total of d less its q
+ * values outside the column's rows), the centred cross-product is
+ * C_jk = S_jk - W_j W_k / (n - q).
+ * Accuracy: the d_u are deviations from the mean of all n squares formed to
+ * about twice double precision, so the S_jk carry no large common part;
+ * L_l are blocked compensated sums, with errors of a few units in the last
+ * place of sum_u d_u^2 (Cauchy-Schwarz bounds every |L_l| by it); W_j is a
+ * sum of q edge values, so W_j W_k / (n - q) is a small term, not a
+ * cancelling one.  The subtraction of the edge products loses digits only
+ * when the q first or last squares hold much of sum_u d_u^2; when any
+ * column's S_jj falls below a sixteenth of it (an outlier at either end)
+ * the cross-products are instead summed over the rows directly. */
+
+/* Lag columns whose Cholesky pivot^2 is at most this share of the column's
+ * own sum of squares are taken as collinear with the earlier ones: such a
+ * pivot is rounding, not signal (lags of residual squares are correlated
+ * far below 1 - 1e-10). */
+#define COLLINEAR_SHARE 1e-10
+
+/* A column whose centred sum of squares is within this many units in the
+ * last place of what rounding leaves of a constant is taken as constant:
+ * on the fast route, of its uncentred sum S_jj; on the direct one, of
+ * deviations from its mean each that many units in the mean's last place. */
+#define CONST_ULPS 64.0
+
+/* A column's sum of squares below this share of sum_u d_u^2 sends the
+ * regression to the direct sums (at most 4 bits lost to the edge terms on
+ * the fast route). */
+#define EDGE_SHARE (1.0 / 16.0)
+
+/* d_u, the centred square, with the bits the lag sums gave it. */
+static inline double dsq(const double *x, size_t u, const diag_lag_sums *s)
 {
-    double acc[COLUMN_BLOCK] = { 0.0 }, mm[COLUMN_BLOCK] = { 0.0 };
-    #pragma GCC unroll 8
-    for (size_t i = 0; i < cnt; i++) {
-        acc[i] = 0.0;
-        mm[i] = m ? m[i] : 0.0;
-    }
-    const double *base = sq - j0;
-    if (m) {
-        for (size_t t = q; t < n; t++)
-            #pragma GCC unroll 8
-            for (size_t i = 0; i < cnt; i++)
-                acc[i] += base[t - i] - mm[i];
-    } else {
-        for (size_t t = q; t < n; t++)
-            #pragma GCC unroll 8
-            for (size_t i = 0; i < cnt; i++)
-                acc[i] += base[t - i];
-    }
-    #pragma GCC unroll 8
-    for (size_t i = 0; i < cnt; i++)
-        out[i] = acc[i];
+    return (x[u] * x[u] - s->m0) - s->c;
 }
 
-/* MEAN[j], j = 0..q: the mean of sq[t - j] over t = q..n-1, by a plain sum,
- * then the plain sum of the deviations from it as a correction (the same
- * operations as one column at a time, COLUMN_BLOCK columns a sweep). */
-static void column_means(const double *sq, size_t n, size_t q, double *mean)
+/* C ((q+1) x (q+1), row-major) from the lag sums (LAG[l-1], l = 1..q),
+ * DIAG[j] = S_jj and TINY[j], the rounding floor of C_jj; W (q+1) scratch. */
+static void cross_from_sums(const double *x, size_t n, size_t q, const diag_lag_sums *s,
+                            const double *lag, double *c, double *diag, double *tiny, double *w)
 {
-    const double rows = (double)(n - q);
-    for (size_t j0 = 0; j0 <= q; j0 += COLUMN_BLOCK) {
-        size_t cnt = q + 1 - j0 < COLUMN_BLOCK ? q + 1 - j0 : COLUMN_BLOCK;
-        double m[COLUMN_BLOCK], r[COLUMN_BLOCK];
-        if (cnt == 6)           /* the default 5 lags and the regressand */
-            column_sweep(sq, n, q, j0, NULL, m, 6);
-        else
-            column_sweep(sq, n, q, j0, NULL, m, cnt);
-        for (size_t i = 0; i < cnt; i++)
-            m[i] /= rows;
-        if (cnt == 6)
-            column_sweep(sq, n, q, j0, m, r, 6);
-        else
-            column_sweep(sq, n, q, j0, m, r, cnt);
-        for (size_t i = 0; i < cnt; i++)
-            mean[j0 + i] = m[i] + r[i] / rows;
+    size_t p = q + 1;
+    double rows = (double)(n - q), tot = s->s1 - (double)n * s->c;
+    for (size_t j = 0; j <= q; j++) {
+        double e = 0.0;
+        for (size_t u = 0; u < q - j; u++)
+            e += dsq(x, u, s);
+        for (size_t u = n - j; u < n; u++)
+            e += dsq(x, u, s);
+        w[j] = tot - e;
     }
-}
-
-/* Lags handled by the fused passes below with their sums in registers;
- * more lags take the same sums through memory. */
-#define FUSED_MAX_Q 8
-
-/* One pass over t = q..n-1 forming, from the centred regressand dy_t =
- * sq[t] - mean[0] and centred lags dv_j = sq[t-j-1] - mean[j+1]: the lower
- * triangle of C = sum dv dv' (C[j q + k], k <= j), G = sum dv dy and
- * SST = sum dy^2.  Each is a plain sum in the order of t, the operations
- * those of one sum at a time; Q a constant after inlining. */
-static inline __attribute__((always_inline)) void
-cross_sums(const double *sq, size_t n, const size_t q, const double *mean, double *c, double *g,
-           double *sst)
-{
-    double cc[FUSED_MAX_Q * FUSED_MAX_Q] = { 0.0 }, gg[FUSED_MAX_Q] = { 0.0 }, s = 0.0;
-    double mm[FUSED_MAX_Q + 1];
-    #pragma GCC unroll 8
     for (size_t j = 0; j <= q; j++)
-        mm[j] = mean[j];
-    for (size_t t = q; t < n; t++) {
-        double dy = sq[t] - mm[0], dv[FUSED_MAX_Q];
-        #pragma GCC unroll 8
-        for (size_t j = 0; j < q; j++)
-            dv[j] = sq[t - j - 1] - mm[j + 1];
-        s += dy * dy;
-        #pragma GCC unroll 8
-        for (size_t j = 0; j < q; j++) {
-            gg[j] += dv[j] * dy;
-            #pragma GCC unroll 8
-            for (size_t k = 0; k <= j; k++)
-                cc[j * q + k] += dv[j] * dv[k];
+        for (size_t k = j; k <= q; k++) {
+            size_t l = k - j;
+            double e = 0.0;
+            for (size_t u = l; u < q - j; u++)
+                e += dsq(x, u, s) * dsq(x, u - l, s);
+            for (size_t u = n - j; u < n; u++)
+                e += dsq(x, u, s) * dsq(x, u - l, s);
+            double sjk = (l == 0 ? s->ss0 : lag[l - 1]) - e;
+            if (l == 0) {
+                diag[j] = sjk;
+                tiny[j] = CONST_ULPS * DBL_EPSILON * sjk;
+            }
+            c[j * p + k] = c[k * p + j] = sjk - w[j] * w[k] / rows;
         }
-    }
-    #pragma GCC unroll 8
-    for (size_t j = 0; j < q; j++) {
-        g[j] = gg[j];
-        #pragma GCC unroll 8
-        for (size_t k = 0; k <= j; k++)
-            c[j * q + k] = cc[j * q + k];
-    }
-    *sst = s;
 }
 
-#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
-#include <string.h>
-#pragma GCC diagnostic ignored "-Wpsabi"   /* the vectors below stay inside one function */
-typedef double v4d __attribute__((vector_size(32)));
-
-/* cross_sums for q = 5 with AVX: each lane of a register is one of the
- * sums, fed the same product in the same order of t (row j of C, g_j and
- * SST; the upper triangle is formed too and dropped), so the digits are
- * those of cross_sums. */
-__attribute__((target("avx2"))) static void
-cross_sums5_avx2(const double *sq, size_t n, const double *mean, double *c, double *g,
-                 double *sst)
+/* The same by sums over the rows, each column centred on its own mean (a
+ * two-pass mean with its correction, as diag_center forms one) and every
+ * cross-product of the deviations a compensated sum: the edge values then
+ * cost no digits.  TINY (q+1): the rounding floors of the C_jj; YBAR (q+1)
+ * scratch.  HN_OK or HN_ENOMEM. */
+static int cross_direct(const double *x, size_t n, size_t q, double *c, double *tiny, double *ybar)
 {
-    const v4d m0 = { mean[4], mean[3], mean[2], mean[1] }, z = { 0.0, 0.0, 0.0, 0.0 };
-    v4d a0 = z, a1 = z, a2 = z, a3 = z, a4 = z, b0 = z, b1 = z, b2 = z, b3 = z, b4 = z, y = z;
-    for (size_t t = 5; t < n; t++) {
-        v4d v;
-        memcpy(&v, sq + t - 4, sizeof v);
-        v -= m0;                                    /* (dv3, dv2, dv1, dv0) */
-        double d4 = sq[t - 5] - mean[5], dy = sq[t] - mean[0];
-        v4d w = { d4, dy, 0.0, 0.0 };
-        v4d s0 = { v[3], v[3], v[3], v[3] }, s1 = { v[2], v[2], v[2], v[2] };
-        v4d s2 = { v[1], v[1], v[1], v[1] }, s3 = { v[0], v[0], v[0], v[0] };
-        v4d s4 = { d4, d4, d4, d4 }, sy = { dy, dy, dy, dy };
-        a0 += s0 * v;
-        b0 += s0 * w;
-        a1 += s1 * v;
-        b1 += s1 * w;
-        a2 += s2 * v;
-        b2 += s2 * w;
-        a3 += s3 * v;
-        b3 += s3 * w;
-        a4 += s4 * v;
-        b4 += s4 * w;
-        y += sy * w;
+    size_t p = q + 1, rows = n - q;
+    double *y = malloc(n * sizeof *y);
+    if (!y)
+        return HN_ENOMEM;
+    for (size_t u = 0; u < n; u++)
+        y[u] = x[u] * x[u];
+    for (size_t j = 0; j <= q; j++) {
+        double m = diag_sum(y + q - j, rows) / (double)rows, s1, s2;
+        diag_sum_dev2(y + q - j, rows, m, &s1, &s2);
+        ybar[j] = m + s1 / (double)rows;
+        tiny[j] = (double)rows * (CONST_ULPS * DBL_EPSILON * ybar[j]) * (CONST_ULPS * DBL_EPSILON * ybar[j]);
     }
-    const v4d A[5] = { a0, a1, a2, a3, a4 }, Bv[5] = { b0, b1, b2, b3, b4 };
-    for (size_t j = 0; j < 5; j++) {
-        for (size_t k = 0; k <= j && k < 4; k++)
-            c[j * 5 + k] = A[j][3 - k];
-        if (j == 4)
-            c[4 * 5 + 4] = Bv[4][0];
-        g[j] = Bv[j][1];
-    }
-    *sst = y[1];
-}
-
-/* refine_sums for q = 5 in the same way: the residual formed term by term
- * in the order of j, then one lane per sum of G. */
-__attribute__((target("avx2"))) static void
-refine_sums5_avx2(const double *sq, size_t n, const double *mean, const double *b, double *g)
-{
-    const v4d m0 = { mean[4], mean[3], mean[2], mean[1] };
-    v4d acc = { 0.0, 0.0, 0.0, 0.0 };
-    double g4 = 0.0;
-    for (size_t t = 5; t < n; t++) {
-        v4d v;
-        memcpy(&v, sq + t - 4, sizeof v);
-        v -= m0;                                    /* (dv3, dv2, dv1, dv0) */
-        double d4 = sq[t - 5] - mean[5], r = sq[t] - mean[0];
-        r -= b[1] * v[3];
-        r -= b[2] * v[2];
-        r -= b[3] * v[1];
-        r -= b[4] * v[0];
-        r -= b[5] * d4;
-        v4d sr = { r, r, r, r };
-        acc += v * sr;
-        g4 += d4 * r;
-    }
-    g[0] = acc[3];
-    g[1] = acc[2];
-    g[2] = acc[1];
-    g[3] = acc[0];
-    g[4] = g4;
-}
-#endif
-
-/* The same sums for any q, through memory. */
-static void cross_sums_any(const double *sq, size_t n, size_t q, const double *mean, double *c,
-                           double *g, double *sst)
-{
-    double s = 0.0;
-    for (size_t k = 0; k < q * q; k++)
-        c[k] = 0.0;
-    for (size_t j = 0; j < q; j++)
-        g[j] = 0.0;
-    for (size_t t = q; t < n; t++) {
-        double dy = sq[t] - mean[0];
-        s += dy * dy;
-        for (size_t j = 0; j < q; j++) {
-            double dj = sq[t - j - 1] - mean[j + 1];
-            g[j] += dj * dy;
-            for (size_t k = 0; k <= j; k++)
-                c[j * q + k] += dj * (sq[t - k - 1] - mean[k + 1]);
-        }
-    }
-    *sst = s;
-}
-
-/* Refinement right-hand side: G = sum dv r over t, r = dy - sum_j B[j+1]
- * dv_j the centred residual (j in order); plain sums in the order of t. */
-static inline __attribute__((always_inline)) void
-refine_sums(const double *sq, size_t n, const size_t q, const double *mean, const double *b,
-            double *g)
-{
-    double gg[FUSED_MAX_Q] = { 0.0 }, mm[FUSED_MAX_Q + 1], bb[FUSED_MAX_Q];
-    #pragma GCC unroll 8
     for (size_t j = 0; j <= q; j++)
-        mm[j] = mean[j];
-    #pragma GCC unroll 8
-    for (size_t j = 0; j < q; j++)
-        bb[j] = b[j + 1];
-    for (size_t t = q; t < n; t++) {
-        double r = sq[t] - mm[0], dv[FUSED_MAX_Q];
-        #pragma GCC unroll 8
-        for (size_t j = 0; j < q; j++) {
-            dv[j] = sq[t - j - 1] - mm[j + 1];
-            r -= bb[j] * dv[j];
+        for (size_t k = j; k <= q; k++) {
+            diag_ksum a = { 0.0, 0.0 };
+            const double *yj = y + q - j, *yk = y + q - k;
+            for (size_t t = 0; t < rows; t++)
+                diag_ksum_add(&a, (yj[t] - ybar[j]) * (yk[t] - ybar[k]));
+            c[j * p + k] = c[k * p + j] = diag_ksum_value(&a);
         }
-        #pragma GCC unroll 8
-        for (size_t j = 0; j < q; j++)
-            gg[j] += dv[j] * r;
-    }
-    #pragma GCC unroll 8
-    for (size_t j = 0; j < q; j++)
-        g[j] = gg[j];
+    free(y);
+    return HN_OK;
 }
 
-static void refine_sums_any(const double *sq, size_t n, size_t q, const double *mean,
-                            const double *b, double *g)
-{
-    for (size_t j = 0; j < q; j++)
-        g[j] = 0.0;
-    for (size_t t = q; t < n; t++) {
-        double r = sq[t] - mean[0];
-        for (size_t j = 0; j < q; j++)
-            r -= b[j + 1] * (sq[t - j - 1] - mean[j + 1]);
-        for (size_t j = 0; j < q; j++)
-            g[j] += (sq[t - j - 1] - mean[j + 1]) * r;
-    }
-}
-
-/* Sum of squared residuals e_t = sq[t] - (B[0] + sum_j B[j] sq[t-j]) over
- * t = q..n-1, a plain sum in the order of t. */
-static inline __attribute__((always_inline)) double
-residual_ss(const double *sq, size_t n, const size_t q, const double *b)
-{
-    double ssr = 0.0;
-    for (size_t t = q; t < n; t++) {
-        double fit = b[0];
-        #pragma GCC unroll 8
-        for (size_t j = 1; j <= q; j++)
-            fit += b[j] * sq[t - j];
-        double e = sq[t] - fit;
-        ssr += e * e;
-    }
-    return ssr;
-}
-
-/* Centred least squares of Y = SQ[q..n-1] on its Q lags and a constant:
- * the normal equations of the mean-removed lags (Cholesky, LAPACKE_dposv)
- * followed by one step of iterative refinement on the residuals, which
- * brings the coefficients to the accuracy of a QR solution for the mildly
- * conditioned designs that lags of squares give, at the cost of a few
- * passes over the data instead of a transposed copy and an unblocked QR of
- * it.  The passes for the default 5 lags keep their sums in registers (the
- * same operations in the same order as for any other q).  B (q+1):
- * intercept, then the lag coefficients.  SST: the regressand's sum of
- * squares about its mean.  WORK: (q+1)(q+3) doubles.  Returns HN_OK,
- * HN_ECONST (regressand constant: SST not positive) or HN_ESINGULAR (lags
- * collinear). */
-static int lag_regression(const double *sq, size_t n, size_t q, double *b, double *sst,
+/* R^2 of the regression of y_t on a constant and its Q lags from the
+ * centred cross-products C and the floors TINY below which a column's
+ * C_jj is rounding (a constant column): the
+ * normal equations of the lags (Cholesky), R^2 = g'b / SST with g the lags'
+ * cross-products with the regressand and SST its sum of squares about its
+ * mean -- no cancellation, unlike 1 - SSR/SST, which loses about
+ * log10(1/R^2) digits.  B1: the lag-1 coefficient.  WORK: q (q + 2)
+ * doubles.  HN_OK, HN_ECONST (SST not positive) or HN_ESINGULAR. */
+static int lag_regression(const double *c, const double *tiny, size_t q, double *r2, double *b1,
                           double *work)
 {
-    double *mean = work, *c = mean + q + 1, *g = c + q * q;
-    /* column means, two passes with the correction term; mean[0]: regressand,
-     * mean[j]: lag j */
-    column_means(sq, n, q, mean);
-#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
-    if (q == 5 && __builtin_cpu_supports("avx2"))
-        cross_sums5_avx2(sq, n, mean, c, g, sst);
-    else
-#endif
-    if (q == 5)
-        cross_sums(sq, n, 5, mean, c, g, sst);
-    else
-        cross_sums_any(sq, n, q, mean, c, g, sst);
-    if (!(*sst > 0.0))
+    size_t p = q + 1;
+    double *a = work, *g = a + q * q, *b = g + q, sst = c[0];
+    if (!(sst > 0.0))
         return HN_ECONST;
-    for (size_t j = 0; j < q; j++)
-        for (size_t k = 0; k < j; k++)
-            c[k * q + j] = c[j * q + k];
-    lapack_int lq = (lapack_int)q;
-    if (LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', lq, c, lq) != 0)
-        return HN_ESINGULAR;
-    for (size_t j = 0; j < q; j++)
-        b[j + 1] = g[j];
-    if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, b + 1, 1) != 0)
-        return HN_ESINGULAR;
-    /* refinement: g = X'r of the centred residuals, solve, add */
-#if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
-    if (q == 5 && __builtin_cpu_supports("avx2"))
-        refine_sums5_avx2(sq, n, mean, b, g);
-    else
-#endif
-    if (q == 5)
-        refine_sums(sq, n, 5, mean, b, g);
-    else
-        refine_sums_any(sq, n, q, mean, b, g);
-    if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, c, lq, g, 1) != 0)
-        return HN_ESINGULAR;
-    double icpt = mean[0];
     for (size_t j = 0; j < q; j++) {
-        b[j + 1] += g[j];
-        icpt -= b[j + 1] * mean[j + 1];
+        g[j] = b[j] = c[j + 1];
+        for (size_t k = 0; k < q; k++)
+            a[j * q + k] = c[(j + 1) * p + k + 1];
     }
-    for (size_t j = 0; j < q; j++)
-        if (!isfinite(b[j + 1]))
+    lapack_int lq = (lapack_int)q;
+    if (LAPACKE_dpotrf(LAPACK_ROW_MAJOR, 'L', lq, a, lq) != 0)
+        return HN_ESINGULAR;
+    for (size_t j = 0; j < q; j++) {
+        /* a column constant but for rounding, or a combination of the others */
+        double cjj = c[(j + 1) * p + j + 1];
+        if (!(cjj > tiny[j + 1]) ||
+            !(a[j * q + j] * a[j * q + j] > COLLINEAR_SHARE * cjj))
             return HN_ESINGULAR;
-    b[0] = icpt;
+    }
+    if (LAPACKE_dpotrs(LAPACK_ROW_MAJOR, 'L', lq, 1, a, lq, b, 1) != 0)
+        return HN_ESINGULAR;
+    double e = 0.0;
+    for (size_t j = 0; j < q; j++) {
+        if (!isfinite(b[j]))
+            return HN_ESINGULAR;
+        e += g[j] * b[j];
+    }
+    /* within [0, 1] as in exact arithmetic */
+    e /= sst;
+    *r2 = e < 0.0 ? 0.0 : (e > 1.0 ? 1.0 : e);
+    *b1 = b[0];
     return HN_OK;
 }
 
@@ -448,7 +262,50 @@ static int lag_regression(const double *sq, size_t n, size_t q, double *b, doubl
  * HN_EINVAL; HN_ESHORT (n < 2q + 3);
  * HN_ECONST (regressand constant); HN_ESINGULAR (rank-deficient lags);
  * HN_ENOMEM; HN_ENUMERIC.  OUT is marked invalid on failure. */
-int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
+/* Engle's ARCH-LM test.  With y_t = x_t^2, the regression y_t = a_0 +
+ * a_1 y_{t-1} + ... + a_q y_{t-q} + u_t over t = q..n-1 (n - q rows) by
+ * least squares (above); R^2 with SST about the mean of the regressand.
+ * Statistic (n-q) R^2, chi-square with q degrees of freedom; OUT->effect
+ * is R^2. */
+static int arch_fill(const double *x, size_t n, size_t q, const diag_lag_sums *s,
+                     const double *lag, double alpha, diag_test *out)
+{
+    const char *name = "arch-lm";
+    size_t p = q + 1, rows = n - q;
+    double *c = malloc((p * p + 3 * p + q * (q + 2)) * sizeof *c);
+    if (!c) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "out of memory");
+        return HN_ENOMEM;
+    }
+    double *diag = c + p * p, *tiny = diag + p, *w = tiny + p, *work = w + p, r2 = 0.0, b1 = 0.0;
+    cross_from_sums(x, n, q, s, lag, c, diag, tiny, w);
+    int rc = HN_OK, direct = 0;
+    for (size_t j = 0; j <= q; j++)
+        direct |= !(diag[j] >= EDGE_SHARE * s->ss0);
+    if (direct)
+        rc = cross_direct(x, n, q, c, tiny, w);
+    if (rc == HN_OK)
+        rc = lag_regression(c, tiny, q, &r2, &b1, work);
+    free(c);
+    if (rc != HN_OK) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY,
+                          rc == HN_ENOMEM ? "out of memory"
+                          : rc == HN_ECONST ? "the squared values are constant"
+                                            : "the lagged squares are collinear");
+        return rc;
+    }
+    double stat = (double)rows * r2;
+    diag_test_fill(out, name, DIAG_VOLATILITY, stat, (double)q, gsl_cdf_chisq_Q(stat, (double)q),
+                   alpha, r2, "share of the variance of x^2 predicted by its lags (R^2)");
+    snprintf(out->detail, sizeof out->detail,
+             "x^2 on %zu lags of itself and a constant, %zu rows; lag-1 coefficient %.3g", q, rows,
+             b1);
+    return HN_OK;
+}
+
+/* Argument checks and the refusals that need no sums: HN_OK or OUT marked
+ * invalid. */
+static int arch_args(const double *x, size_t n, int q, double alpha, diag_test *out)
 {
     const char *name = "arch-lm";
     if (!x || q < 1 || !(alpha > 0.0 && alpha < 1.0)) {
@@ -460,52 +317,53 @@ int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
         diag_test_invalid(out, name, DIAG_VOLATILITY, "too few observations for the lags asked");
         return HN_ESHORT;
     }
-    size_t rows = n - uq, cols = uq + 1;
-    double *sq = malloc(n * sizeof *sq);
-    double *b = malloc(cols * sizeof *b);
-    double *work = malloc(cols * (uq + 3) * sizeof *work);
-    if (!sq || !b || !work) {
-        free(sq);
-        free(b);
-        free(work);
-        diag_test_invalid(out, name, DIAG_VOLATILITY, "out of memory");
+    if (!diag_all_finite(x, n)) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "the squares are not computable");
+        return HN_ENUMERIC;
+    }
+    /* a constant regressand, told exactly (most series differ at once) */
+    double y0 = x[uq] * x[uq];
+    size_t t = uq + 1;
+    while (t < n && x[t] * x[t] == y0)
+        t++;
+    if (t == n) {
+        diag_test_invalid(out, name, DIAG_VOLATILITY, "the squared values are constant");
+        return HN_ECONST;
+    }
+    return HN_OK;
+}
+
+int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out)
+{
+    int rc = arch_args(x, n, q, alpha, out);
+    if (rc != HN_OK)
+        return rc;
+    double *lag = malloc((size_t)q * sizeof *lag);
+    if (!lag) {
+        diag_test_invalid(out, "arch-lm", DIAG_VOLATILITY, "out of memory");
         return HN_ENOMEM;
     }
-    int rc = squares(x, n, sq);
-    if (rc != HN_OK) {
-        diag_test_invalid(out, name, DIAG_VOLATILITY, "the squares are not computable");
-        goto done;
-    }
-    /* The regressand's mean is column 0 of the regression's column means,
-     * and its sum of squares about that mean comes from the regression's
-     * cross-product pass. */
-    double sst = 0.0;
-    rc = lag_regression(sq, n, uq, b, &sst, work);
-    if (rc == HN_ECONST) {
-        diag_test_invalid(out, name, DIAG_VOLATILITY, "the squared values are constant");
-        goto done;
-    }
-    if (rc != HN_OK) {
-        diag_test_invalid(out, name, DIAG_VOLATILITY, "the lagged squares are collinear");
-        goto done;
-    }
-    double ssr = uq == 5 ? residual_ss(sq, n, 5, b) : residual_ss(sq, n, uq, b);
-    double r2 = 1.0 - ssr / sst;
-    if (r2 < 0.0)
-        r2 = 0.0;
-    if (!isfinite(r2)) {
-        rc = HN_ENUMERIC;
-        diag_test_invalid(out, name, DIAG_VOLATILITY, "a non-finite value arose");
-        goto done;
-    }
-    double stat = (double)rows * r2;
-    diag_test_fill(out, name, DIAG_VOLATILITY, stat, (double)q, gsl_cdf_chisq_Q(stat, (double)q), alpha, r2,
-         "share of the variance of x^2 predicted by its lags (R^2)");
-    snprintf(out->detail, sizeof out->detail,
-             "x^2 on %d lags of itself and a constant, %zu rows; lag-1 coefficient %.3g", q, rows, b[1]);
-done:
-    free(sq);
-    free(b);
-    free(work);
+    diag_lag_sums s;
+    rc = diag_lag_sums_of(x, n, 1, q, &s, lag);
+    if (rc == HN_OK)
+        rc = arch_fill(x, n, (size_t)q, &s, lag, alpha, out);
+    else if (rc == HN_ENUMERIC)
+        diag_test_invalid(out, "arch-lm", DIAG_VOLATILITY, "the squares or their products overflow");
+    else
+        diag_test_invalid(out, "arch-lm", DIAG_VOLATILITY, "out of memory");
+    free(lag);
     return rc;
+}
+
+int diag_arch_lm_sums(const double *x, size_t n, int q, const diag_lag_sums *s,
+                      const double *lag, int nlags, double alpha, diag_test *out)
+{
+    int rc = arch_args(x, n, q, alpha, out);
+    if (rc != HN_OK)
+        return rc;
+    if (!s || !lag || nlags < q) {
+        diag_test_invalid(out, "arch-lm", DIAG_VOLATILITY, "the sums given are too few");
+        return HN_EINVAL;
+    }
+    return arch_fill(x, n, (size_t)q, s, lag, alpha, out);
 }

@@ -60,6 +60,9 @@ typedef struct {
      * read them (NULL: each such check computes its own) */
     const double *acf, *acf2;
     int nacf, nacf2;
+    /* the sums of the squares that ACF2 comes from (ACF2 non-NULL) */
+    const diag_lag_sums *sums2;
+    const double *lag2;
     /* x less its mean (diag_center_ss; NULL: none) and the mean and sd */
     const double *d;
     double mean, sd;
@@ -80,10 +83,13 @@ typedef int (*fn_acf2_m)(const double *acf2, int nlags, size_t n, int m, double 
                          diag_test *out);
 typedef int (*fn_acf_plain)(const double *x, size_t n, const double *acf, int nlags,
                             double alpha, diag_test *out);
+typedef int (*fn_sums_q)(const double *x, size_t n, int q, const diag_lag_sums *s,
+                         const double *lag, int nlags, double alpha, diag_test *out);
 /* The forms that take the battery's centred copy or its mean and sd. */
 typedef int (*fn_centred_acf)(const double *x, const double *d, size_t n, const double *acf,
                               int nlags, double alpha, diag_test *out);
 typedef int (*fn_from_ms)(double mean, double sd, size_t n, double alpha, diag_test *out);
+typedef int (*fn_bare)(const double *d, size_t n, double alpha, diag_test *out);
 
 typedef enum {
     ARG_PLAIN,      /* (x, n, alpha, out) */
@@ -106,39 +112,42 @@ static const struct {
         fn_lags_adj lags_adj;
         fn_moments moments;
     } f;
-    struct {            /* the same check from the shared ACF (NULL: none) */
+    struct {            /* the same check from the shared ACF or its sums (NULL: none) */
         fn_acf_adj adj;
         fn_acf2_m sq;
         fn_acf_plain plain;
+        fn_sums_q sums;
     } a;
-    struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd */
+    struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd,
+                         * the centred copy without the practical size (set below) */
         fn_centred_acf dacf;
         fn_moments d;
         fn_from_ms ms;
+        fn_bare bare;
     } c;
 } CHECKS[] = {
-    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL },
+    { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL, NULL },
                                     { .ms = diag_mean_ttest_from } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
-    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL, NULL },
+                                    { NULL, NULL, NULL, NULL } },
+    { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL, NULL },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf },
-                                    { NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram },
                                     { .plain = diag_cum_periodogram_acf },
-                                    { .dacf = diag_cum_periodogram_centred } },
+                                    { .dacf = diag_cum_periodogram_centred, .bare = diag_cum_periodogram_bare } },
     { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf },
-                                    { NULL, NULL, NULL } },
-    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
-    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL },
-                                    { NULL, NULL, NULL } },
-    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL },
+                                    { NULL, NULL, NULL, NULL } },
+    { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { .sums = diag_arch_lm_sums },
+                                    { NULL, NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL, NULL },
+                                    { NULL, NULL, NULL, NULL } },
+    { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL, NULL },
+                                    { NULL, NULL, NULL, NULL } },
+    { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL, NULL },
                                     { .d = diag_jarque_bera_centred } },
 };
 #define NCHECKS (sizeof CHECKS / sizeof CHECKS[0])
@@ -158,6 +167,8 @@ _Static_assert(NCHECKS <= DIAG_MAX_TESTS, "the battery's result holds every chec
 static int run_check(size_t i, const run_ctx *c, diag_test *t)
 {
     double skew, kurt;
+    if (CHECKS[i].c.bare && c->d && c->acf)
+        return CHECKS[i].c.bare(c->d, c->n, c->alpha, t);
     if (CHECKS[i].c.dacf && c->d && c->acf)
         return CHECKS[i].c.dacf(c->x, c->d, c->n, c->acf, c->nacf, c->alpha, t);
     if (CHECKS[i].c.d && c->d)
@@ -170,6 +181,8 @@ static int run_check(size_t i, const run_ctx *c, diag_test *t)
         return CHECKS[i].a.sq(c->acf2, c->nacf2, c->n, c->m, c->alpha, t);
     if (CHECKS[i].a.plain && c->acf)
         return CHECKS[i].a.plain(c->x, c->n, c->acf, c->nacf, c->alpha, t);
+    if (CHECKS[i].a.sums && c->acf2 && c->arch_q <= c->nacf2)
+        return CHECKS[i].a.sums(c->x, c->n, c->arch_q, c->sums2, c->lag2, c->nacf2, c->alpha, t);
     switch (CHECKS[i].kind) {
     case ARG_PLAIN:   return CHECKS[i].f.plain(c->x, c->n, c->alpha, t);
     case ARG_BLOCKS:  return CHECKS[i].f.blocks(c->x, c->n, c->nblocks, c->alpha, t);
@@ -364,37 +377,33 @@ static int battery_acf(const double *x, const double *d, double ss0, size_t n, s
     return HN_OK;
 }
 
-/* The ACF of x^2 to TOP2 lags into a new array *ACF2; NULL (and HN_OK)
- * when a value is not finite or the squares are constant, so that each
- * check then says why itself; HN_ENOMEM. */
-static int squares_acf(const double *x, size_t n, int top2, double **acf2)
+/* The ACF of x^2 to TOP2 lags into a new array *ACF2, with the sums it
+ * comes from in S and a new array *LAG2; NULLs (and HN_OK) when a value is
+ * not finite or the squares are constant, so that each check then says why
+ * itself; HN_ENOMEM. */
+static int squares_acf(const double *x, size_t n, int top2, double **acf2, diag_lag_sums *s,
+                       double **lag2)
 {
-    double *sq = malloc(n * sizeof *sq), *a = malloc((size_t)top2 * sizeof *a);
-    *acf2 = NULL;
-    if (!sq || !a) {
-        free(sq);
+    double *a = malloc((size_t)top2 * sizeof *a), *l = malloc((size_t)top2 * sizeof *l);
+    *acf2 = *lag2 = NULL;
+    if (!a || !l) {
         free(a);
+        free(l);
         return HN_ENOMEM;
     }
-    int fin = 1;
-    for (size_t i = 0; i < n; i++) {
-        fin &= isfinite(x[i]) != 0;
-        sq[i] = x[i] * x[i];
-    }
-    /* centred in place: the digits of diag_acf on the squares, one copy fewer */
-    double ss0 = 0.0;
-    int rc = fin ? diag_center_ss(sq, n, sq, &ss0) : HN_ENUMERIC;
-    if (rc == HN_OK)
-        rc = diag_acf_is_direct(n, top2) ? diag_acf_centred(sq, n, ss0, top2, a) : HN_EINVAL;
-    free(sq);
-    if (rc == HN_ENOMEM) {
+    /* the squares formed on the way: the digits of diag_acf on a copy of them */
+    int rc = diag_lag_sums_of(x, n, 1, top2, s, l);
+    if (rc == HN_OK && !(s->ss0 > 0.0))
+        rc = HN_ECONST;
+    if (rc != HN_OK) {
         free(a);
-        return HN_ENOMEM;
+        free(l);
+        return rc == HN_ENOMEM ? HN_ENOMEM : HN_OK;
     }
-    if (rc != HN_OK)
-        free(a);
-    else
-        *acf2 = a;
+    for (int k = 0; k < top2; k++)
+        a[k] = l[k] / s->ss0;
+    *acf2 = a;
+    *lag2 = l;
     return HN_OK;
 }
 
@@ -409,12 +418,6 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         return HN_EINVAL;
     if (n < 8)
         return HN_ESHORT;
-    int rc = diag_mean_sd(x, n, &out->mean, &out->sd);
-    if (rc != HN_OK)
-        return rc;
-    if (!(out->sd > 0.0))
-        return HN_ECONST;
-
     out->n = n;
     out->alpha = opt->alpha;
     out->band = gsl_cdf_ugaussian_Qinv(opt->alpha / 2.0) / sqrt((double)n);
@@ -479,34 +482,53 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         diag_battery_free(out);
         return HN_ENOMEM;
     }
+    /* the mean and sd, and on the direct route the centred copy from the
+     * same mean, before anything else: every check waits for one or the
+     * other */
+    int rc = dev ? diag_center_ss_sd(x, n, dev, &ss0, &out->mean, &out->sd)
+                 : diag_mean_sd(x, n, &out->mean, &out->sd);
+    if (rc == HN_OK && !(out->sd > 0.0))
+        rc = HN_ECONST;
+    if (rc != HN_OK) {
+        free(dev);
+        diag_battery_free(out);
+        return rc;
+    }
+    diag_lag_sums sums2;
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
-                    share_x ? out->acf : NULL, NULL, (int)top, top2, NULL, out->mean, out->sd };
-    int rc_dev = HN_OK, rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
-    double *acf2 = NULL;
+                    share_x ? out->acf : NULL, NULL, (int)top, top2, &sums2, NULL,
+                    NULL, out->mean, out->sd };
+    int rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
+    double *acf2 = NULL, *lag2 = NULL;
+    ctx.d = dev;
     int par = !omp_in_parallel() && n >= PARALLEL_MIN_N;
 #pragma omp parallel if (par)
 #pragma omp single
     {
-#pragma omp task shared(rc_dev, dev, ss0, ctx) depend(out: rc_dev)
-        if (dev) {
-            rc_dev = diag_center_ss(x, n, dev, &ss0);
-            ctx.d = rc_dev == HN_OK ? dev : NULL;
-        }
-#pragma omp task shared(rc_acf, rc_dev, out, ctx, ss0) depend(in: rc_dev) depend(out: rc_acf)
-        rc_acf = rc_dev == HN_OK ? battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out) : rc_dev;
-#pragma omp task shared(rc_acf2, acf2, ctx) depend(out: rc_acf2)
+        /* the longest check first (it needs only the centred copy) */
+        for (size_t i = 0; i < NCHECKS; i++)
+            if (CHECKS[i].c.bare) {
+#pragma omp task shared(ctx, out, rcs)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            }
+#pragma omp task shared(rc_acf, out, ctx, ss0) depend(out: rc_acf)
+        rc_acf = battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out);
+#pragma omp task shared(rc_acf2, acf2, lag2, sums2, ctx) depend(out: rc_acf2)
         {
-            rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2) : HN_OK;
+            rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2, &sums2, &lag2) : HN_OK;
             ctx.acf2 = acf2;
+            ctx.lag2 = lag2;
         }
         for (size_t k = 0; k < NCHECKS; k++) {
             size_t i = COST_ORDER[k];
-            if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
+            if (CHECKS[i].c.bare) {
+                continue;
+            } else if (CHECKS[i].a.sums) {
+#pragma omp task shared(ctx, out, rcs, rc_acf2) depend(in: rc_acf2)
+                rcs[i] = run_check(i, &ctx, &out->tests[i]);
+            } else if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
 #pragma omp task shared(ctx, out, rcs, rc_acf, rc_acf2) depend(in: rc_acf, rc_acf2)
                 rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
-            } else if (CHECKS[i].c.d) {
-#pragma omp task shared(ctx, out, rcs, rc_dev) depend(in: rc_dev)
-                rcs[i] = run_check(i, &ctx, &out->tests[i]);
             } else {
 #pragma omp task shared(ctx, out, rcs)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
@@ -517,6 +539,7 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
     ctx.d = NULL;
     if (rc_acf != HN_OK || rc_acf2 == HN_ENOMEM) {
         free(acf2);
+        free(lag2);
         diag_battery_free(out);
         return rc_acf != HN_OK ? rc_acf : HN_ENOMEM;
     }
@@ -525,6 +548,7 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         diag_test *t = &out->tests[i];
         if (rcs[i] == HN_ENOMEM) {
             free(acf2);
+            free(lag2);
             diag_battery_free(out);
             return HN_ENOMEM;
         }
@@ -539,6 +563,7 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
     double serial = ar_share(x, n, 0, ctx.acf, &mem_ok);
     double vol = ar_share(x, n, 1, acf2, &mem_ok);
     free(acf2);
+    free(lag2);
     if (!mem_ok) {
         diag_battery_free(out);
         return HN_ENOMEM;

@@ -7,6 +7,7 @@
 #define DIAG_CHECKS_H
 
 #include <stddef.h>
+#include "diag_stats.h"
 #include "diag_test.h"
 
 /* --- mean zero, serial correlation (diag_portmanteau.c, diag_stats.c) --- */
@@ -36,6 +37,9 @@ int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int n
  * read), in place of its own centred copy. */
 int diag_cum_periodogram_centred(const double *x, const double *d, size_t n, const double *acf,
                                  int nlags, double alpha, diag_test *out);
+/* The same from D alone, without the practical size (effect NAN, no
+ * label): for a caller that sets it from its own ACF. */
+int diag_cum_periodogram_bare(const double *d, size_t n, double alpha, diag_test *out);
 
 /* --- constant variance: global against local (diag_variance.c) --- */
 /* Equality of block variances (Brown-Forsythe: Levene on |x - block median|)
@@ -57,8 +61,16 @@ int diag_mcleod_li(const double *x, size_t n, int m, double alpha, diag_test *ou
  * only read); as diag_mcleod_li for that ACF. */
 int diag_mcleod_li_acf(const double *acf2, int nlags, size_t n, int m, double alpha,
                        diag_test *out);
-/* Engle's ARCH-LM: regress x_t^2 on 1, x_{t-1}^2..x_{t-q}^2; statistic (n-q) R^2, df q. */
+/* Engle's ARCH-LM: regress x_t^2 on 1, x_{t-1}^2..x_{t-q}^2; statistic (n-q) R^2, df q.
+ * Returns HN_OK; HN_EINVAL; HN_ESHORT (n < 2q + 3); HN_ENUMERIC (a value not
+ * finite, or the squares' sums overflow); HN_ECONST (regressand constant);
+ * HN_ESINGULAR (collinear lags); HN_ENOMEM.  OUT is marked invalid on failure. */
 int diag_arch_lm(const double *x, size_t n, int q, double alpha, diag_test *out);
+/* The same from S and LAG[0..nlags-1] (nlags >= q), diag_lag_sums_of for
+ * the squares of X (only read; X is read for its first and last q values):
+ * the digits of diag_arch_lm. */
+int diag_arch_lm_sums(const double *x, size_t n, int q, const diag_lag_sums *s,
+                      const double *lag, int nlags, double alpha, diag_test *out);
 
 /* --- randomness (diag_runs.c) --- */
 /* Wald-Wolfowitz runs above/below the median (values equal to the median dropped). */

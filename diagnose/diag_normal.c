@@ -19,14 +19,12 @@
  * the moments are compensated sums formed in one pass.  OUT->effect is the excess kurtosis.
  * Returns HN_OK; HN_EINVAL; HN_ESHORT (n < 8); HN_ECONST (all values equal);
  * HN_ENUMERIC; HN_ENOMEM.  On failure OUT is invalid and the moments NAN. */
-/* Jarque-Bera from the deviations D (x less its mean, as diag_center). */
-static int jarque_bera_centred(const double *d, size_t n, double alpha, diag_test *out,
-                               double *skewness, double *excess_kurtosis)
+/* Jarque-Bera from S, the compensated sums of d^2, d^3 and d^4 of the
+ * deviations (x less its mean, as diag_center forms them). */
+static int jarque_bera_sums(const double s[3], size_t n, double alpha, diag_test *out,
+                            double *skewness, double *excess_kurtosis)
 {
     const char *name = "jarque-bera";
-    /* compensated sums of d^2, d^3, d^4 (diag_sum.h), one pass */
-    double s[3];
-    diag_sum_moments(d, n, s);
     double dn = (double)n;
     double m2 = s[0] / dn, m3 = s[1] / dn, m4 = s[2] / dn;
     if (!(m2 > 0.0)) {
@@ -86,20 +84,14 @@ int diag_jarque_bera(const double *x, size_t n, double alpha, diag_test *out,
     int rc = jb_args(x, n, alpha, out, skewness, excess_kurtosis);
     if (rc != HN_OK)
         return rc;
-    double *d = malloc(n * sizeof *d);
-    if (!d) {
-        diag_test_invalid(out, name, DIAG_NORMAL, "out of memory");
-        return HN_ENOMEM;
-    }
-    rc = diag_center(x, n, d);
+    /* the deviations formed on the way, not stored */
+    double s[3];
+    rc = diag_center_moments(x, n, s);
     if (rc != HN_OK) {
-        free(d);
         diag_test_invalid(out, name, DIAG_NORMAL, "a value is not finite");
         return rc;
     }
-    rc = jarque_bera_centred(d, n, alpha, out, skewness, excess_kurtosis);
-    free(d);
-    return rc;
+    return jarque_bera_sums(s, n, alpha, out, skewness, excess_kurtosis);
 }
 
 int diag_jarque_bera_centred(const double *d, size_t n, double alpha, diag_test *out,
@@ -108,5 +100,7 @@ int diag_jarque_bera_centred(const double *d, size_t n, double alpha, diag_test 
     int rc = jb_args(d, n, alpha, out, skewness, excess_kurtosis);
     if (rc != HN_OK)
         return rc;
-    return jarque_bera_centred(d, n, alpha, out, skewness, excess_kurtosis);
+    double s[3];
+    diag_sum_moments(d, n, s);
+    return jarque_bera_sums(s, n, alpha, out, skewness, excess_kurtosis);
 }

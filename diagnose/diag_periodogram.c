@@ -75,6 +75,18 @@ static void plan_release(kept_plan *k)
     }
 }
 
+/* Kahan's compensated sum of the ordinates in the order of j, formed as
+ * they are (its chain of dependent additions then overlaps their
+ * arithmetic instead of following it). */
+typedef struct { double total, comp; } ord_sum;
+
+static inline void ord_add(ord_sum *k, double v)
+{
+    double y = v - k->comp, t = k->total + y;
+    k->comp = (t - k->total) - y;
+    k->total = t;
+}
+
 /* Largest prime factor of n (n >= 2), by trial division. */
 static size_t largest_prime_factor(size_t n)
 {
@@ -118,7 +130,7 @@ int diag_periodogram_route(size_t n)
  * sqrt(q)), so that about 2 sqrt(q) sines and cosines are evaluated
  * instead of 2q; each factor is correctly rounded to within an ulp, so the
  * product is good to a few ulps, below the transform's own rounding. */
-static int periodogram_even(const double *d, size_t n, size_t q, double *I)
+static int periodogram_even(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
 {
     size_t m = n / 2, B = (size_t)sqrt((double)q) + 1;
     fftw_complex *a = fftw_alloc_complex(m);
@@ -156,6 +168,7 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I)
             double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
             double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
             I[j - 1] = xr * xr + xi * xi;
+            ord_add(sum, I[j - 1]);
         }
     }
 done:
@@ -166,7 +179,7 @@ done:
 }
 
 /* Odd n with small prime factors: FFTW's real transform of length n. */
-static int periodogram_real(const double *d, size_t n, size_t q, double *I)
+static int periodogram_real(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
 {
     double *in = fftw_alloc_real(n);
     fftw_complex *out = fftw_alloc_complex(n / 2 + 1);
@@ -183,8 +196,10 @@ static int periodogram_real(const double *d, size_t n, size_t q, double *I)
         goto done;
     }
     fftw_execute_dft_r2c(p->p, in, out);
-    for (size_t j = 1; j <= q; j++)
+    for (size_t j = 1; j <= q; j++) {
         I[j - 1] = out[j][0] * out[j][0] + out[j][1] * out[j][1];
+        ord_add(sum, I[j - 1]);
+    }
 done:
     plan_release(p);
     fftw_free(in);
@@ -198,7 +213,7 @@ done:
  * L >= 2n - 1, the smallest with prime factors 2, 3, 5 and 7 only; the
  * outer chirp has modulus 1 and drops out of |X_j|^2, and FFTW's unscaled
  * inverse leaves a factor L, removed at the end. */
-static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
+static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
 {
     size_t L = smooth_length(2 * n - 1);
     fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
@@ -241,8 +256,10 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
     }
     fftw_execute_dft(inv->p, a, a);
     double s = 1.0 / ((double)L * (double)L);
-    for (size_t j = 1; j <= q; j++)
+    for (size_t j = 1; j <= q; j++) {
         I[j - 1] = (a[j][0] * a[j][0] + a[j][1] * a[j][1]) * s;
+        ord_add(sum, I[j - 1]);
+    }
 done:
     plan_release(fwd);
     plan_release(inv);
@@ -251,10 +268,14 @@ done:
     return rc;
 }
 
-int diag_periodogram(const double *d, size_t n, size_t q, double *I)
+int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *total)
 {
     int route = diag_periodogram_route(n);
-    return route == 0 ? periodogram_even(d, n, q, I)
-         : route == 1 ? periodogram_real(d, n, q, I)
-                      : periodogram_chirp(d, n, q, I);
+    ord_sum sum = { 0.0, 0.0 };
+    int rc = route == 0 ? periodogram_even(d, n, q, I, &sum)
+           : route == 1 ? periodogram_real(d, n, q, I, &sum)
+                        : periodogram_chirp(d, n, q, I, &sum);
+    if (total)
+        *total = sum.total;
+    return rc;
 }

@@ -281,7 +281,7 @@ double diag_kolmogorov_q(double l)
  * sqrt(M) + 0.12 + 0.11/sqrt(M), M = q-1 (Stephens, M. A. (1970), J. R.
  * Statist. Soc. B 32, 115-122; factor recalled from memory). */
 static int cum_periodogram(const double *x, const double *centred, size_t n, double alpha,
-                           diag_test *out, const double *acf_given, int acf_given_lags)
+                           diag_test *out, const double *acf_given, int acf_given_lags, int effect)
 {
     static const char name[] = "cum-periodogram";
     if (bad_alpha(alpha)) {
@@ -306,37 +306,37 @@ static int cum_periodogram(const double *x, const double *centred, size_t n, dou
         diag_test_invalid(out, name, DIAG_SERIAL, "a value is not finite");
         goto done;
     }
-    rc = diag_periodogram(d, n, q, I);
+    double total = 0.0;
+    rc = diag_periodogram(d, n, q, I, &total);
     if (rc != HN_OK) {
         diag_test_invalid(out, name, DIAG_SERIAL,
                           rc == HN_ENOMEM ? "out of memory" : "the Fourier transform failed");
         rc = rc == HN_ENOMEM ? HN_ENOMEM : HN_EINVAL;
         goto done;
     }
-    double total = 0.0, comp = 0.0;
-    for (size_t j = 1; j <= q; j++) {
-        double y = I[j - 1] - comp, t = total + y;
-        comp = (t - total) - y;
-        total = t;
-    }
+    /* TOTAL: the compensated sum of the ordinates, formed with them */
     if (!(total > 0.0) || !isfinite(total)) {
         rc = HN_EINVAL;
         diag_test_invalid(out, name, DIAG_SERIAL, "the values are constant");
         goto done;
     }
-    double cum = 0.0, D = 0.0, worst_c = 0.0, worst_u = 0.0;
+    double cum = 0.0, D = 0.0, worst_c = 0.0, worst_u = 0.0, below = 0.0;
     size_t worst_j = 1;
     for (size_t j = 1; j <= M; j++) {
+        /* BELOW: (j-1)/M, the quotient of the step before (the same bits,
+         * one division fewer a step) */
+        double above = (double)j / (double)M;
         cum += I[j - 1];
         double c = cum / total;
-        double dplus = (double)j / (double)M - c, dminus = c - (double)(j - 1) / (double)M;
+        double dplus = above - c, dminus = c - below;
         double dj = dplus > dminus ? dplus : dminus;
         if (dj > D) {
             D = dj;
             worst_j = j;
             worst_c = c;
-            worst_u = dplus > dminus ? (double)j / (double)M : (double)(j - 1) / (double)M;
+            worst_u = dplus > dminus ? above : below;
         }
+        below = above;
     }
     double sm = sqrt((double)M);
     double lambda = (sm + 0.12 + 0.11 / sm) * D;
@@ -348,7 +348,7 @@ static int cum_periodogram(const double *x, const double *centred, size_t n, dou
              "(period %.1f), cumulative share %.3f against uniform %.3f",
              D, q, q, worst_j, n, (double)n / (double)worst_j, worst_c, worst_u);
     /* Practical size as for the portmanteau tests. */
-    {
+    if (effect) {
         int order = diag_share_order(n);
         double pacf[DIAG_SHARE_MAX], own[DIAG_SHARE_MAX];
         if (order >= 1 && order <= DIAG_SHARE_MAX && acf_given && acf_given_lags < order)
@@ -368,17 +368,22 @@ done:
 
 int diag_cum_periodogram(const double *x, size_t n, double alpha, diag_test *out)
 {
-    return cum_periodogram(x, NULL, n, alpha, out, NULL, 0);
+    return cum_periodogram(x, NULL, n, alpha, out, NULL, 0, 1);
 }
 
 int diag_cum_periodogram_acf(const double *x, size_t n, const double *acf, int nlags,
                              double alpha, diag_test *out)
 {
-    return cum_periodogram(x, NULL, n, alpha, out, acf, nlags);
+    return cum_periodogram(x, NULL, n, alpha, out, acf, nlags, 1);
 }
 
 int diag_cum_periodogram_centred(const double *x, const double *d, size_t n, const double *acf,
                                  int nlags, double alpha, diag_test *out)
 {
-    return cum_periodogram(x, d, n, alpha, out, acf, nlags);
+    return cum_periodogram(x, d, n, alpha, out, acf, nlags, 1);
+}
+
+int diag_cum_periodogram_bare(const double *d, size_t n, double alpha, diag_test *out)
+{
+    return cum_periodogram(NULL, d, n, alpha, out, NULL, 0, 0);
 }

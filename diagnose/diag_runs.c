@@ -11,9 +11,13 @@
 #include "diag_sum.h"
 #include "hn_status.h"
 
-/* Two doubles and two 64-bit masks (GCC vector extension). */
-typedef double v2d __attribute__((vector_size(16)));
-typedef long long v2l __attribute__((vector_size(16)));
+#if defined(__SSE2__)
+/* The comparisons two values at a time with SSE2: a true comparison is an
+ * all-ones lane, -1 as an integer.  (GCC's generic vectors turn the AND
+ * and OR of two comparison masks into lane-by-lane scalar code.) */
+#include <emmintrin.h>
+#define VEC_COUNTS 1
+#endif
 
 /* Wald-Wolfowitz runs test about the median.  Values above the median are
  * coded +, below -, values equal to the median are dropped; R is the number
@@ -47,17 +51,54 @@ int diag_runs_test(const double *x, size_t n, double alpha, diag_test *out)
         return HN_ENOMEM;
     }
 
-    /* Signs and runs counted without branches (the signs of residuals are
-     * as unpredictable as coin tosses); a value equal to the median keeps
-     * the previous sign for the run count. */
-    size_t n1 = 0, n2 = 0, runs = 0;
-    int prev = 0;
-    for (size_t i = 0; i < n; i++) {
-        int sign = (x[i] > med) - (x[i] < med);
-        n1 += sign > 0;
-        n2 += sign < 0;
-        runs += (sign != 0) & (sign != prev);
-        prev = sign != 0 ? sign : prev;
+    /* Runs of the signs with the zeros (values equal to the median)
+     * dropped: one for the first nonzero sign, one more for every change
+     * between neighbours that are both nonzero, and, across each stretch of
+     * zeros, one when the signs on either side differ.  The first three
+     * are counted two neighbour pairs at a time without branches (the
+     * signs of residuals are as unpredictable as coin tosses); the
+     * stretches of zeros are few and looked at one by one. */
+    size_t n1 = (x[0] > med), n2 = (x[0] < med), nz = (x[0] == med), runs = 0, i = 1;
+#ifdef VEC_COUNTS
+    __m128d vm = _mm_set1_pd(med);
+    __m128i up = _mm_setzero_si128(), down = up, flips = up, zeros = up;
+    for (; i + 2 <= n; i += 2) {
+        __m128d prev = _mm_loadu_pd(x + i - 1), cur = _mm_loadu_pd(x + i);
+        __m128d u = _mm_cmpgt_pd(cur, vm), l = _mm_cmplt_pd(cur, vm);
+        __m128d f = _mm_or_pd(_mm_and_pd(_mm_cmpgt_pd(prev, vm), l),
+                              _mm_and_pd(_mm_cmplt_pd(prev, vm), u));
+        up = _mm_sub_epi64(up, _mm_castpd_si128(u));
+        down = _mm_sub_epi64(down, _mm_castpd_si128(l));
+        zeros = _mm_sub_epi64(zeros, _mm_castpd_si128(_mm_cmpeq_pd(cur, vm)));
+        flips = _mm_sub_epi64(flips, _mm_castpd_si128(f));
+    }
+    long long c[8];
+    _mm_storeu_si128((__m128i *)c, up);
+    _mm_storeu_si128((__m128i *)(c + 2), down);
+    _mm_storeu_si128((__m128i *)(c + 4), zeros);
+    _mm_storeu_si128((__m128i *)(c + 6), flips);
+    n1 += (size_t)(c[0] + c[1]);
+    n2 += (size_t)(c[2] + c[3]);
+    nz += (size_t)(c[4] + c[5]);
+    runs += (size_t)(c[6] + c[7]);
+#endif
+    for (; i < n; i++) {
+        n1 += x[i] > med;
+        n2 += x[i] < med;
+        nz += x[i] == med;
+        runs += ((x[i - 1] > med) & (x[i] < med)) | ((x[i - 1] < med) & (x[i] > med));
+    }
+    runs += n1 + n2 > 0;
+    for (size_t j = 0; nz > 0 && j < n; j++) {
+        if (x[j] != med)
+            continue;
+        size_t a = j, b = j;
+        while (b < n && x[b] == med)
+            b++;
+        nz -= b - a;
+        if (a > 0 && b < n)
+            runs += (x[a - 1] > med) != (x[b] > med);
+        j = b;
     }
     if (n1 < 2 || n2 < 2) {
         diag_test_invalid(out, name, DIAG_RANDOM, "too few values on one side of the median");
@@ -99,18 +140,23 @@ int diag_turning_points(const double *x, size_t n, double alpha, diag_test *out)
         return HN_ENUMERIC;
     }
     /* counted without branches (whether a point turns is a coin toss), two
-     * points at a time: a true comparison is an all-ones lane, -1 */
-    v2l vtp = { 0, 0 }, vties = { 0, 0 };
-    size_t i = 1;
+     * points at a time where SSE2 is there */
+    size_t tp = 0, ties = 0, i = 1;
+#ifdef VEC_COUNTS
+    __m128i vtp = _mm_setzero_si128(), vties = vtp;
     for (; i + 2 < n; i += 2) {
-        v2d l, c, r;
-        memcpy(&l, x + i - 1, sizeof l);
-        memcpy(&c, x + i, sizeof c);
-        memcpy(&r, x + i + 1, sizeof r);
-        vtp -= ((c > l) & (c > r)) | ((c < l) & (c < r));
-        vties -= (c == l) | (c == r);
+        __m128d l = _mm_loadu_pd(x + i - 1), c = _mm_loadu_pd(x + i), r = _mm_loadu_pd(x + i + 1);
+        __m128d t = _mm_or_pd(_mm_and_pd(_mm_cmpgt_pd(c, l), _mm_cmpgt_pd(c, r)),
+                              _mm_and_pd(_mm_cmplt_pd(c, l), _mm_cmplt_pd(c, r)));
+        vtp = _mm_sub_epi64(vtp, _mm_castpd_si128(t));
+        vties = _mm_sub_epi64(vties, _mm_castpd_si128(_mm_or_pd(_mm_cmpeq_pd(c, l), _mm_cmpeq_pd(c, r))));
     }
-    size_t tp = (size_t)(vtp[0] + vtp[1]), ties = (size_t)(vties[0] + vties[1]);
+    long long k[4];
+    _mm_storeu_si128((__m128i *)k, vtp);
+    _mm_storeu_si128((__m128i *)(k + 2), vties);
+    tp = (size_t)(k[0] + k[1]);
+    ties = (size_t)(k[2] + k[3]);
+#endif
     for (; i + 1 < n; i++) {
         double l = x[i - 1], c = x[i], r = x[i + 1];
         tp += (size_t)(((c > l) & (c > r)) | ((c < l) & (c < r)));

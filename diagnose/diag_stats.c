@@ -10,28 +10,41 @@
 #include <gsl/gsl_fft_real.h>
 #include <gsl/gsl_fft_halfcomplex.h>
 
-/* Mean of X as a rounded part M0 plus a small correction C: m0 + c is the
+/* Mean of X (SQUARE = 0) or of its squares (1) as a rounded part M0 plus a
+ * small correction C: m0 + c is the
  * mean to about twice double precision (the correction is the mean of the
  * deviations from m0, a blocked compensated sum, diag_sum.h).  The
  * deviations x_i - m0 are exact when x_i and m0 lie within a factor of two
  * of each other (Sterbenz), the usual case for data whose spread is small
- * against their level.  With SS, the same pass gives the sum of squares of
- * the corrected deviations, sum ((x_i - m0) - c)^2 = S2 - c S1 with S1 and
- * S2 the sums of the deviations from m0 and of their squares. */
-static int mean_parts(const double *x, size_t n, double *m0, double *c, double *ss)
+ * against their level.  S1 and S2 are the sums of the deviations from m0
+ * and of their squares. */
+static int mean_parts_of(const double *x, size_t n, int square, double *m0, double *c, double *s1,
+                         double *s2)
 {
-    double s = diag_sum(x, n);
+    double s = square ? diag_sum_sq(x, n) : diag_sum(x, n);
     if (!isfinite(s))
         return HN_ENUMERIC;   /* a non-finite value, or a sum beyond the double range */
-    double m = s / (double)n, s1, s2;
-    diag_sum_dev2(x, n, m, &s1, &s2);
+    double m = s / (double)n;
+    if (square)
+        diag_sum_dev2_sq(x, n, m, s1, s2);
+    else
+        diag_sum_dev2(x, n, m, s1, s2);
     *m0 = m;
-    *c = s1 / (double)n;
+    *c = *s1 / (double)n;
     if (!isfinite(*m0) || !isfinite(*c))
         return HN_ENUMERIC;
-    if (ss)
-        *ss = s2 - *c * s1;
     return HN_OK;
+}
+
+/* The same for X; with SS, the sum of squares of the corrected deviations,
+ * sum ((x_i - m0) - c)^2 = S2 - c S1. */
+static int mean_parts(const double *x, size_t n, double *m0, double *c, double *ss)
+{
+    double s1, s2;
+    int rc = mean_parts_of(x, n, 0, m0, c, &s1, &s2);
+    if (rc == HN_OK && ss)
+        *ss = s2 - *c * s1;
+    return rc;
 }
 
 int diag_center(const double *x, size_t n, double *d)
@@ -118,6 +131,44 @@ int diag_center_ss(const double *x, size_t n, double *d, double *ss)
     return HN_OK;
 }
 
+int diag_center_ss_sd(const double *x, size_t n, double *d, double *ss, double *mean, double *sd)
+{
+    if (n < 2)
+        return HN_ESHORT;
+    if (diag_max_abs(x, n) > 0x1p500) {
+        /* diag_mean_sd's scaled route, then the centring apart */
+        int rc = diag_mean_sd(x, n, mean, sd);
+        return rc == HN_OK ? diag_center_ss(x, n, d, ss) : rc;
+    }
+    double m0, c, s1, s2;
+    int rc = mean_parts_of(x, n, 0, &m0, &c, &s1, &s2);
+    if (rc != HN_OK)
+        return rc;
+    /* as diag_mean_sd forms them from the same parts */
+    double v = (s2 - c * s1) / (double)(n - 1);
+    if (!isfinite(v))
+        return HN_ENUMERIC;
+    *mean = m0 + c;
+    *sd = sqrt(v > 0.0 ? v : 0.0);
+    double w = diag_sum_center(x, n, m0, c, d);
+    if (!isfinite(w))
+        return HN_ENUMERIC;
+    *ss = w;
+    return HN_OK;
+}
+
+int diag_center_moments(const double *x, size_t n, double s[3])
+{
+    double m0, c;
+    if (n < 1)
+        return HN_ESHORT;
+    int rc = mean_parts(x, n, &m0, &c, NULL);
+    if (rc != HN_OK)
+        return rc;
+    diag_sum_moments_of(x, n, m0, c, s);
+    return HN_OK;
+}
+
 /* Shared argument checks and centring: a malloc'd array of deviations and
  * their compensated sum of squares. */
 static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, double *ss0)
@@ -142,6 +193,51 @@ static int acf_prepare(const double *x, size_t n, int maxlag, double **dev, doub
     return HN_OK;
 }
 
+int diag_lag_sums_of(const double *x, size_t n, int square, int maxlag, diag_lag_sums *s,
+                     double *lag)
+{
+    double s2;
+    int rc = mean_parts_of(x, n, square, &s->m0, &s->c, &s->s1, &s2);
+    if (rc != HN_OK)
+        return rc;
+    if (maxlag <= DIAG_SUM_MAXLAG) {
+        diag_sum_center_lagged(x, n, square, s->m0, s->c, maxlag, &s->ss0, lag);
+    } else {
+        /* the centred copy and one sum a lag, the same digits */
+        double *d = malloc(n * sizeof *d);
+        if (!d)
+            return HN_ENOMEM;
+        if (square)
+            for (size_t i = 0; i < n; i++)
+                d[i] = x[i] * x[i];
+        s->ss0 = diag_sum_center(square ? d : x, n, s->m0, s->c, d);
+        for (int k = 1; k <= maxlag; k++)
+            lag[k - 1] = diag_sum_dot(d + k, d, n - (size_t)k);
+        free(d);
+    }
+    if (!isfinite(s->ss0))
+        return HN_ENUMERIC;
+    return HN_OK;
+}
+
+/* The direct ACF of X or of its squares, from the sums above. */
+static int acf_direct_of(const double *x, size_t n, int square, int maxlag, double *acf)
+{
+    if (n < 2)
+        return HN_ESHORT;
+    if (maxlag < 1 || (size_t)maxlag > n - 1)
+        return HN_EINVAL;
+    diag_lag_sums s;
+    int rc = diag_lag_sums_of(x, n, square, maxlag, &s, acf);
+    if (rc != HN_OK)
+        return rc;
+    if (s.ss0 <= 0.0)
+        return HN_ECONST;
+    for (int k = 0; k < maxlag; k++)
+        acf[k] /= s.ss0;
+    return HN_OK;
+}
+
 /* Lags 1..MAXLAG of the centred D with lag-0 sum SS0. */
 static void acf_sums(const double *d, size_t n, double ss0, int maxlag, double *acf)
 {
@@ -160,13 +256,7 @@ static void acf_sums(const double *d, size_t n, double ss0, int maxlag, double *
  * with the digits of its own pass. */
 int diag_acf_direct(const double *x, size_t n, int maxlag, double *acf)
 {
-    double *d, ss0;
-    int rc = acf_prepare(x, n, maxlag, &d, &ss0);
-    if (rc != HN_OK)
-        return rc;
-    acf_sums(d, n, ss0, maxlag, acf);
-    free(d);
-    return HN_OK;
+    return acf_direct_of(x, n, 0, maxlag, acf);
 }
 
 int diag_acf_centred(const double *d, size_t n, double ss0, int maxlag, double *acf)
@@ -245,6 +335,22 @@ int diag_acf(const double *x, size_t n, int maxlag, double *acf)
     if (diag_acf_is_direct(n, maxlag))
         return diag_acf_direct(x, n, maxlag, acf);
     return diag_acf_fft(x, n, maxlag, acf);
+}
+
+int diag_acf_sq(const double *x, size_t n, int maxlag, double *acf)
+{
+    if (n < 2)
+        return HN_ESHORT;
+    if (diag_acf_is_direct(n, maxlag))
+        return acf_direct_of(x, n, 1, maxlag, acf);
+    double *sq = malloc(n * sizeof *sq);
+    if (!sq)
+        return HN_ENOMEM;
+    for (size_t i = 0; i < n; i++)
+        sq[i] = x[i] * x[i];
+    int rc = diag_acf_fft(sq, n, maxlag, acf);
+    free(sq);
+    return rc;
 }
 
 int diag_pacf(const double *acf, int maxlag, double *pacf)
@@ -355,6 +461,45 @@ double diag_median_inplace(double *a, size_t n)
     return 0.5 * (lo + hi);
 }
 
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
+
+/* Values A[I0..I1-1] within [LO, HI] appended to BUF from position M (the
+ * new M returned), those below LO counted into *BELOW.  Without branches
+ * (whether a value falls within is unpredictable): every value is stored
+ * at BUF[M] and M advances past the ones that fall within; with SSE2 the
+ * comparisons are made two at a time. */
+static size_t filter_range(const double *a, size_t i0, size_t i1, double lo, double hi,
+                           double *buf, size_t m, size_t *below)
+{
+    size_t i = i0, b = 0;
+#if defined(__SSE2__)
+    __m128d vlo = _mm_set1_pd(lo), vhi = _mm_set1_pd(hi);
+    __m128i cnt = _mm_setzero_si128();
+    for (; i + 2 <= i1; i += 2) {
+        __m128d u = _mm_loadu_pd(a + i);
+        cnt = _mm_sub_epi64(cnt, _mm_castpd_si128(_mm_cmplt_pd(u, vlo)));
+        int in = _mm_movemask_pd(_mm_and_pd(_mm_cmpge_pd(u, vlo), _mm_cmple_pd(u, vhi)));
+        buf[m] = a[i];
+        m += (size_t)(in & 1);
+        buf[m] = a[i + 1];
+        m += (size_t)(in >> 1);
+    }
+    long long c[2];
+    _mm_storeu_si128((__m128i *)c, cnt);
+    b = (size_t)(c[0] + c[1]);
+#endif
+    for (; i < i1; i++) {
+        double v = a[i];
+        b += v < lo;
+        buf[m] = v;
+        m += (v >= lo) & (v <= hi);
+    }
+    *below += b;
+    return m;
+}
+
 /* Below this length the median is a selection on a copy. */
 #define MEDIAN_DIRECT_N 4096
 /* Values filtered per check of the buffer's room. */
@@ -400,12 +545,8 @@ int diag_median(const double *a, size_t n, double *med)
             int room = 1;
             while (i < n && room) {
                 size_t e = i + MEDIAN_CHUNK < n ? i + MEDIAN_CHUNK : n;
-                for (; i < e; i++) {
-                    double v = a[i];
-                    below += v < lo;
-                    buf[m] = v;
-                    m += (v >= lo) & (v <= hi);
-                }
+                m = filter_range(a, i, e, lo, hi, buf, m, &below);
+                i = e;
                 room = m + MEDIAN_CHUNK <= cap;
             }
             if (room && below <= k1 && k2 < below + m) {

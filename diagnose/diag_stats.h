@@ -30,6 +30,14 @@ int diag_center(const double *x, size_t n, double *d);
 /* The same deviations and, in the same pass, SS = sum_i D[i]^2 (compensated),
  * exactly as diag_acf forms them.  HN_OK, HN_ESHORT, HN_ENUMERIC. */
 int diag_center_ss(const double *x, size_t n, double *d, double *ss);
+/* Both at once: D and SS as diag_center_ss gives them and MEAN and SD as
+ * diag_mean_sd does, the mean found once.  HN_OK, HN_ESHORT (n < 2),
+ * HN_ENUMERIC, HN_ENOMEM. */
+int diag_center_ss_sd(const double *x, size_t n, double *d, double *ss, double *mean, double *sd);
+/* S[0..2] = sum_i d_i^2, d_i^3, d_i^4 of the same deviations, not stored:
+ * the digits of diag_center followed by diag_sum_moments.  HN_OK,
+ * HN_ESHORT, HN_ENUMERIC. */
+int diag_center_moments(const double *x, size_t n, double s[3]);
 
 /* Autocorrelations r_1..r_maxlag of X into ACF[0..maxlag-1] (caller
  * allocates maxlag doubles).  diag_acf chooses the method by cost:
@@ -54,6 +62,25 @@ int diag_acf_centred(const double *d, size_t n, double ss0, int maxlag, double *
  * N >= 2n (so no circular wrap-around), inverse of the power spectrum:
  * O(N log N).  The lag-0 sum of squares is the compensated direct sum. */
 int diag_acf_fft(const double *x, size_t n, int maxlag, double *acf);
+
+/* The sums behind the direct route, of the series (SQUARE = 0) or of its
+ * squares (1, formed on the way, never stored): with v_i the values, M0 +
+ * C their mean as diag_center forms it, S1 = sum_i (v_i - M0) (compensated)
+ * and d_i = (v_i - M0) - C, SS0 = sum_i d_i^2 and LAG[k-1] = sum_{t>=k}
+ * d_t d_{t-k} for k = 1..MAXLAG (1 <= MAXLAG < n; caller's array).  The
+ * digits are those diag_acf_direct divides, on the values given; lag k's
+ * sum does not depend on MAXLAG.  One pass over X for the mean, one for
+ * S1, one for the rest (MAXLAG <= 64; beyond, a centred copy is made).
+ * SS0 is not checked.  HN_OK, HN_ENUMERIC (a value or a sum not finite),
+ * HN_ENOMEM. */
+typedef struct {
+    double m0, c, s1, ss0;
+} diag_lag_sums;
+int diag_lag_sums_of(const double *x, size_t n, int square, int maxlag, diag_lag_sums *s,
+                     double *lag);
+/* The ACF of the squares x_i^2, with the digits of diag_acf on a stored
+ * copy of them (no copy is made on the direct route).  Returns as diag_acf. */
+int diag_acf_sq(const double *x, size_t n, int maxlag, double *acf);
 
 /* Partial autocorrelations phi_11..phi_mm (m = MAXLAG) from ACF[0..m-1] by
  * the Durbin-Levinson recursion, into PACF[0..m-1] (caller allocates).

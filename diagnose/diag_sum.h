@@ -40,6 +40,9 @@ static inline double diag_ksum_value(const diag_ksum *k)
 
 /* sum_i x_i. */
 double diag_sum(const double *x, size_t n);
+/* sum_i x_i^2 with the squares formed on the way: the digits of diag_sum
+ * over a stored copy of the squares (so too the _sq and _of forms below). */
+double diag_sum_sq(const double *x, size_t n);
 /* sum_i p_i q_i (the lagged products of the ACF: p = d + k, q = d). */
 double diag_sum_dot(const double *p, const double *q, size_t n);
 /* S[k-1] = sum_{t=k..n-1} d_t d_{t-k} for k = 1..MAXLAG (MAXLAG <=
@@ -49,11 +52,21 @@ double diag_sum_dot(const double *p, const double *q, size_t n);
 void diag_sum_lagged(const double *d, size_t n, int maxlag, double *s);
 /* S1 = sum_i (x_i - m) and S2 = sum_i (x_i - m)^2, in one pass. */
 void diag_sum_dev2(const double *x, size_t n, double m, double *s1, double *s2);
+/* The same over the squares x_i^2. */
+void diag_sum_dev2_sq(const double *x, size_t n, double m, double *s1, double *s2);
 /* D[i] = (x_i - m0) - c written and sum_i D[i]^2 returned, in one pass
  * (D may equal X). */
 double diag_sum_center(const double *x, size_t n, double m0, double c, double *d);
 /* sum_i d_i^2, d_i^3 and d_i^4 into S[0..2], in one pass. */
 void diag_sum_moments(const double *d, size_t n, double s[3]);
+/* The same over d_i = (x_i - m0) - c, formed on the way. */
+void diag_sum_moments_of(const double *x, size_t n, double m0, double c, double s[3]);
+/* With d_i = (v_i - m0) - c, v_i = x_i (SQUARE = 0) or x_i^2 (1), never
+ * stored: SS = sum_i d_i^2 (the digits of diag_sum_center) and S[k-1] =
+ * sum_{t=k..n-1} d_t d_{t-k}, k = 1..MAXLAG (0 <= MAXLAG <= DIAG_SUM_MAXLAG,
+ * < n; the digits of diag_sum_lagged), in one pass over X. */
+void diag_sum_center_lagged(const double *x, size_t n, int square, double m0, double c,
+                            int maxlag, double *ss, double *s);
 /* 1 when every x_i is finite, else 0 (one vectorised pass, no branch). */
 int diag_all_finite(const double *x, size_t n);
 /* The largest |x_i| (0 for n = 0; NaNs are passed over). */

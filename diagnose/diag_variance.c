@@ -56,25 +56,14 @@ static void block_moments(const double *d, const size_t *sizes, size_t k, double
     }
 }
 
-/* One-way ANOVA sums on D (already shifted), groups of SIZES.  Fills the
- * between and within sums of squares and, when GM is not NULL, each
- * group's mean GM[g] and sum of squares GS[g].  The grand mean is the
- * size-weighted mean of the group means (compensated).  Requires every
- * size > 0; HN_OK or HN_ENOMEM. */
-static int anova_sums(const double *d, const size_t *sizes, size_t k,
-                      double *ssb, double *ssw, double *gm, double *gs)
+/* Between and within sums of squares from each group's mean GM[g] and sum
+ * of squared deviations GS[g]; the grand mean is the size-weighted mean of
+ * the group means (compensated). */
+static void anova_combine(const size_t *sizes, size_t k, const double *gm, const double *gs,
+                          double *ssb, double *ssw)
 {
-    double *own = NULL;
-    if (!gm) {
-        own = malloc(2 * k * sizeof *own);
-        if (!own)
-            return HN_ENOMEM;
-        gm = own;
-        gs = own + k;
-    }
     size_t ntot = 0;
     diag_ksum tot = { 0.0, 0.0 }, w = { 0.0, 0.0 };
-    block_moments(d, sizes, k, gm, gs);
     for (size_t g = 0; g < k; g++) {
         diag_ksum_add(&tot, (double)sizes[g] * gm[g]);
         diag_ksum_add(&w, gs[g]);
@@ -87,7 +76,20 @@ static int anova_sums(const double *d, const size_t *sizes, size_t k,
     }
     *ssb = b;
     *ssw = diag_ksum_value(&w);
-    free(own);
+}
+
+/* One-way ANOVA sums on D (already shifted), groups of SIZES.  Fills the
+ * between and within sums of squares.  Requires every size > 0; HN_OK or
+ * HN_ENOMEM. */
+static int anova_sums(const double *d, const size_t *sizes, size_t k, double *ssb, double *ssw)
+{
+    double *gm = malloc(2 * k * sizeof *gm);
+    if (!gm)
+        return HN_ENOMEM;
+    double *gs = gm + k;
+    block_moments(d, sizes, k, gm, gs);
+    anova_combine(sizes, k, gm, gs, ssb, ssw);
+    free(gm);
     return HN_OK;
 }
 
@@ -163,7 +165,7 @@ int diag_anova_groups(const double *x, const size_t *sizes, size_t ngroups,
     if (!d)
         return HN_ENOMEM;
     double ssb, ssw;
-    rc = anova_sums(d, sizes, ngroups, &ssb, &ssw, NULL, NULL);
+    rc = anova_sums(d, sizes, ngroups, &ssb, &ssw);
     free(d);
     if (rc != HN_OK)
         return rc;
@@ -217,7 +219,7 @@ int diag_levene_groups(const double *x, const size_t *sizes, size_t ngroups, int
     double ssb, ssw;
     rc = abs_deviations(d, sizes, ngroups, median_centred, z);
     if (rc == HN_OK)
-        rc = anova_sums(z, sizes, ngroups, &ssb, &ssw, NULL, NULL);
+        rc = anova_sums(z, sizes, ngroups, &ssb, &ssw);
     free(d);
     free(z);
     if (rc != HN_OK)
@@ -309,6 +311,54 @@ static void describe_blocks(const double *bm, const double *bss, const size_t *s
                  which == 0 ? "mean" : "sd", rule, nb);
 }
 
+typedef double v2d __attribute__((vector_size(16)));
+typedef long v2l __attribute__((vector_size(16)));
+
+/* OUT[i] = X[i] - C, or |X[i] - C| with ABS (OUT may equal X), two values
+ * at a time (|.| by clearing the sign bit, as fabs does). */
+static void shift_abs(const double *x, size_t n, double c, int abs, double *out)
+{
+    const v2d vc = { c, c };
+    const v2l mag = { 0x7fffffffffffffffL, 0x7fffffffffffffffL };
+    size_t i = 0;
+    for (; i + 2 <= n; i += 2) {
+        v2d v;
+        memcpy(&v, x + i, sizeof v);
+        v -= vc;
+        if (abs)
+            v = (v2d)((v2l)v & mag);
+        memcpy(out + i, &v, sizeof v);
+    }
+    for (; i < n; i++)
+        out[i] = abs ? fabs(x[i] - c) : x[i] - c;
+}
+
+/* The block sums, one block at a time in SCRATCH (room for the largest
+ * block, which stays in cache for every pass over it): the shifted values
+ * d = x - x_0, their mean BM[g] and sum of squares BSS[g] and, with WHICH
+ * (Brown-Forsythe), those of |d - block median|, ZM[g] and ZS[g].  The
+ * values and the order of every sum are those of the groups' forms over a
+ * shifted copy of all of X.  HN_OK or HN_ENOMEM. */
+static int block_pass(const double *x, const size_t *sizes, size_t nb, int which, double *scratch,
+                      double *bm, double *bss, double *zm, double *zs)
+{
+    const double *p = x, x0 = x[0];
+    for (size_t g = 0; g < nb; g++) {
+        size_t m = sizes[g];
+        shift_abs(p, m, x0, 0, scratch);
+        bm[g] = mean_ss(scratch, m, &bss[g]);
+        if (which) {
+            double med;
+            if (diag_median(scratch, m, &med) != HN_OK)
+                return HN_ENOMEM;
+            shift_abs(scratch, m, med, 1, scratch);
+            zm[g] = mean_ss(scratch, m, &zs[g]);
+        }
+        p += m;
+    }
+    return HN_OK;
+}
+
 /* Shared driver of the two block tests: WHICH 0 = ANOVA of means,
  * 1 = Brown-Forsythe of spreads. */
 static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
@@ -324,14 +374,12 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
         return HN_ESHORT;
     }
     size_t *sizes = malloc(nblocks * sizeof *sizes);
-    double *d = shifted_copy(x, n);
-    double *z = which ? malloc(n * sizeof *z) : NULL;
-    double *scratch = malloc(4 * nblocks * sizeof *scratch);
-    if (!sizes || !d || (which && !z) || !scratch) {
+    double *scratch = malloc(6 * nblocks * sizeof *scratch);
+    double *blk = malloc((n / nblocks + 1) * sizeof *blk);
+    if (!sizes || !scratch || !blk) {
         free(sizes);
-        free(d);
-        free(z);
         free(scratch);
+        free(blk);
         diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
         return HN_ENOMEM;
     }
@@ -339,24 +387,20 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
     /* block means and sums of squares of the shifted data, for the detail
      * and (Brown-Forsythe) the practical size */
     double *bm = scratch, *bss = scratch + nblocks, *more = scratch + 2 * nblocks;
+    double *zm = scratch + 4 * nblocks, *zs = scratch + 5 * nblocks;
     double ssb, ssw, F, df1, df2, p;
-    int rc;
-    if (which) {
-        block_moments(d, sizes, nblocks, bm, bss);
-        rc = abs_deviations(d, sizes, nblocks, 1, z);
-        if (rc == HN_OK)
-            rc = anova_sums(z, sizes, nblocks, &ssb, &ssw, NULL, NULL);
-    } else {
-        rc = anova_sums(d, sizes, nblocks, &ssb, &ssw, bm, bss);
-    }
+    int rc = block_pass(x, sizes, nblocks, which, blk, bm, bss, zm, zs);
+    free(blk);
     if (rc == HN_ENOMEM) {
         diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
         free(sizes);
-        free(d);
-        free(z);
         free(scratch);
         return HN_ENOMEM;
     }
+    if (which)
+        anova_combine(sizes, nblocks, zm, zs, &ssb, &ssw);
+    else
+        anova_combine(sizes, nblocks, bm, bss, &ssb, &ssw);
     rc = f_from_sums(ssb, ssw, n, nblocks, &F, &df1, &df2, &p);
     if (rc == HN_ENUMERIC) {
         diag_test_invalid(out, name, DIAG_VARIANCE,
@@ -380,8 +424,6 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
         describe_blocks(bm, bss, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, more);
     }
     free(sizes);
-    free(d);
-    free(z);
     free(scratch);
     return rc == HN_ECONST || rc == HN_ENUMERIC ? rc : HN_OK;
 }

@@ -1,5 +1,6 @@
 /* test_acf_forms.c - the ACF-taking forms of Ljung-Box, Box-Pierce, McLeod-Li and the cumulative periodogram. */
 #include "testutil.h"
+#include "diag_battery.h"
 #include "diag_checks.h"
 #include "diag_stats.h"
 #include "hn_status.h"
@@ -148,12 +149,77 @@ static void test_shared_pieces(void **state)
     gsl_rng_free(r);
 }
 
+/* The sums formed on the way (squares and deviations never stored) give
+ * the digits of the same sums over stored copies: the ACF of the squares,
+ * the lag sums of either route (up to 64 lags in one pass, beyond that a
+ * centred copy), and the battery's McLeod-Li and ARCH-LM (from the
+ * squares' shared sums) against the checks run alone.  Gaussian data with
+ * a level, GARCH-like data, odd and even lengths including ones shorter
+ * than a block of 64 (GSL mt19937 seed 13). */
+static void test_streamed_sums(void **state)
+{
+    (void)state;
+    const size_t ns[6] = { 9, 63, 65, 1001, 4096, 50001 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 13UL);
+    for (int s = 0; s < 6; s++)
+        for (int kind = 0; kind < 2; kind++) {
+            size_t n = ns[s];
+            double *x = malloc(n * sizeof *x), *sq = malloc(n * sizeof *sq), h = 1.0, e = 0.0;
+            assert_non_null(x);
+            assert_non_null(sq);
+            for (size_t i = 0; i < n; i++) {
+                h = 0.1 + 0.2 * e * e + 0.7 * h;
+                e = sqrt(h) * gsl_ran_gaussian(r, 1.0);
+                x[i] = kind ? e : 5.0 + gsl_ran_gaussian(r, 1.0);
+                sq[i] = x[i] * x[i];
+            }
+            int top = n > 21 ? 20 : (int)n - 1;
+            double a1[20], a2[20];
+            assert_int_equal(diag_acf_sq(x, n, top, a1), HN_OK);
+            assert_int_equal(diag_acf(sq, n, top, a2), HN_OK);
+            assert_memory_equal(a1, a2, (size_t)top * sizeof *a1);
+            if (n > 80) {
+                /* lag k's sum is the same on both routes */
+                diag_lag_sums s1, s2;
+                double l1[70], l2[10];
+                assert_int_equal(diag_lag_sums_of(x, n, 1, 70, &s1, l1), HN_OK);
+                assert_int_equal(diag_lag_sums_of(x, n, 1, 10, &s2, l2), HN_OK);
+                assert_memory_equal(l1, l2, sizeof l2);
+                assert_memory_equal(&s1, &s2, sizeof s1);
+            }
+            if (n >= 1001) {
+                diag_battery b;
+                diag_options o = diag_default_options();
+                diag_test t;
+                assert_int_equal(diag_battery_run(x, n, &o, &b), HN_OK);
+                for (int i = 0; i < b.ntests; i++) {
+                    if (strcmp(b.tests[i].name, "mcleod-li") == 0) {
+                        assert_int_equal(diag_mcleod_li(x, n, b.m, 0.05, &t), HN_OK);
+                    } else if (strcmp(b.tests[i].name, "arch-lm") == 0) {
+                        assert_int_equal(diag_arch_lm(x, n, 5, 0.05, &t), HN_OK);
+                    } else {
+                        continue;
+                    }
+                    /* the battery replaces the effect by its practical size */
+                    t.effect = b.tests[i].effect;
+                    same_test(&t, &b.tests[i]);
+                }
+                diag_battery_free(&b);
+            }
+            free(x);
+            free(sq);
+        }
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_series_f),
         cmocka_unit_test(test_shared_pieces),
         cmocka_unit_test(test_dmbp_squares),
+        cmocka_unit_test(test_streamed_sums),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

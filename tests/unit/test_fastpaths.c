@@ -7,6 +7,8 @@
 #include <stdint.h>
 #include <unistd.h>
 
+#include <lapacke.h>
+
 #include <gsl/gsl_multifit.h>
 #include <gsl/gsl_randist.h>
 #include <gsl/gsl_rng.h>
@@ -115,6 +117,91 @@ static void test_arch_lm_against_svd(void **state)
     gsl_rng_free(r);
 }
 
+/* ARCH-LM's R^2 (cross-products from the lagged sums of the whole series'
+ * centred squares, or by direct sums when an end value dominates) against
+ * a plain least-squares fit of the regression as defined: y_t = x_t^2 on a
+ * constant and y_{t-1..t-q} over t = q..n-1, solved by LAPACKE_dgels (QR),
+ * R^2 = sum (fit - mean y)^2 / sum (y - mean y)^2.  Gaussian, GARCH(1,1)
+ * and Student-t(3)-like data, a level of 30 (large mean of the squares),
+ * and single large values first, last and in the middle; q = 1, 5, 8;
+ * n = 60, 201 and 5000 (GSL mt19937 seed 21). */
+static void test_arch_lm_against_lstsq(void **state)
+{
+    (void)state;
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 21UL);
+    const size_t ns[3] = { 60, 201, 5000 };
+    const int qs[3] = { 1, 5, 8 };
+    for (int s = 0; s < 3; s++)
+        for (int kind = 0; kind < 7; kind++) {
+            size_t n = ns[s];
+            double *x = malloc(n * sizeof *x), h = 1.0, e = 0.0;
+            assert_non_null(x);
+            for (size_t t = 0; t < n; t++) {
+                double z = gsl_ran_gaussian(r, 1.0);
+                if (kind == 1) {
+                    h = 0.05 + 0.15 * e * e + 0.8 * h;
+                    e = sqrt(h) * z;
+                    z = e;
+                } else if (kind == 2) {
+                    z = gsl_ran_tdist(r, 3.0);
+                } else if (kind == 3) {
+                    z += 30.0;
+                }
+                x[t] = z;
+            }
+            if (kind == 4)
+                x[0] = 300.0;
+            if (kind == 5)
+                x[n - 1] = -300.0;
+            if (kind == 6)
+                x[n / 2] = 300.0;
+            for (int iq = 0; iq < 3; iq++) {
+                size_t q = (size_t)qs[iq], rows = n - q, p = q + 1;
+                double *X = malloc(rows * p * sizeof *X), *y = malloc(rows * sizeof *y);
+                assert_non_null(X);
+                assert_non_null(y);
+                for (size_t i = 0; i < rows; i++) {
+                    size_t t = i + q;
+                    y[i] = x[t] * x[t];
+                    X[i * p] = 1.0;
+                    for (size_t j = 1; j <= q; j++)
+                        X[i * p + j] = x[t - j] * x[t - j];
+                }
+                double *b = malloc(rows * sizeof *b), ym = 0.0, sst = 0.0, ess = 0.0;
+                assert_non_null(b);
+                memcpy(b, y, rows * sizeof *b);
+                double *Xc = malloc(rows * p * sizeof *Xc);
+                assert_non_null(Xc);
+                memcpy(Xc, X, rows * p * sizeof *Xc);
+                assert_int_equal(LAPACKE_dgels(LAPACK_ROW_MAJOR, 'N', (lapack_int)rows, (lapack_int)p, 1,
+                                               Xc, (lapack_int)p, b, 1), 0);
+                for (size_t i = 0; i < rows; i++)
+                    ym += y[i];
+                ym /= (double)rows;
+                for (size_t i = 0; i < rows; i++) {
+                    double fit = 0.0;
+                    for (size_t j = 0; j < p; j++)
+                        fit += X[i * p + j] * b[j];
+                    sst += (y[i] - ym) * (y[i] - ym);
+                    ess += (fit - ym) * (fit - ym);
+                }
+                double r2 = ess / sst;
+                diag_test t;
+                assert_int_equal(diag_arch_lm(x, n, (int)q, 0.05, &t), HN_OK);
+                if (!(tu_lre(t.effect, r2) >= 9.0) || !(tu_lre(t.statistic, (double)rows * r2) >= 9.0))
+                    fail_msg("n = %zu, kind %d, q = %zu: R^2 %.17g, least squares %.17g", n, kind, q,
+                             t.effect, r2);
+                free(X);
+                free(Xc);
+                free(y);
+                free(b);
+            }
+            free(x);
+        }
+    gsl_rng_free(r);
+}
+
 /* The CSV reader's decimal fast paths against the C library's strtod (glibc,
  * correctly rounded), bit for bit: 300000 random decimals of 1 to 19
  * significant digits with the point anywhere and exponents from -30 to 30
@@ -180,6 +267,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_runs_median_by_selection),
         cmocka_unit_test(test_arch_lm_against_svd),
+        cmocka_unit_test(test_arch_lm_against_lstsq),
         cmocka_unit_test(test_csv_numbers_against_strtod),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
