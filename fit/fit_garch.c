@@ -439,10 +439,26 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
         return HN_ENUMERIC;
     memcpy(r->par, th, (size_t)np * sizeof *th);
     r->loglik = ll;
-    for (size_t i = 0; i < N; i++) {
-        r->resid[i] = w->e[i];
-        r->sigma_t[i] = sqrt(w->h[i]);
-        r->std_resid[i] = w->e[i] / r->sigma_t[i];
+    if (hess) {
+        /* No pass follows (the standard errors need none): the work's e_t
+         * and sigma2_t arrays become the result's, instead of copies that
+         * would be written, and faulted in, afresh. */
+        free(r->resid);
+        free(r->sigma_t);
+        r->resid = w->e;
+        r->sigma_t = w->h;
+        w->e = w->h = NULL;
+        w->last_kind = 0;
+        for (size_t i = 0; i < N; i++) {
+            r->sigma_t[i] = sqrt(r->sigma_t[i]);
+            r->std_resid[i] = r->resid[i] / r->sigma_t[i];
+        }
+    } else {
+        for (size_t i = 0; i < N; i++) {
+            r->resid[i] = w->e[i];
+            r->sigma_t[i] = sqrt(w->h[i]);
+            r->std_resid[i] = w->e[i] / r->sigma_t[i];
+        }
     }
     fit_result_criteria(r, np);
     double a = th[io + 1], b = th[io + 2];
