@@ -10,6 +10,7 @@
 
 #include <gsl/gsl_sf_gamma.h>
 #include <gsl/gsl_sf_psi.h>
+#include <omp.h>
 
 /* Neumaier's compensated sum: running sum S and correction C. */
 typedef struct { double s, c; } ksum;
@@ -304,99 +305,69 @@ static int ar_resid(fit_garch_work *w, const double *th, double *ssr, double *gs
     return ar_resid_body(w, th, ssr, gsum, moff, nar);
 }
 
-/* The pass behind fit_garch_loglik for KM mean parameters and Student-t
- * (HAS_NU = 1) or normal innovations, AR_ONLY = 1 when the mean has no MA
- * terms, then with FMOFF (1: a constant) and FNAR AR terms when these are
- * fixed at compile time (FMOFF < 0: read from the spec); the caller has
- * counted the pass and checked TH.  Sums and
- * derivatives live in locals (no aliasing with the output arrays).  The
- * log-likelihood's sums are plain within a block of LOG_BLOCK terms and
- * compensated (Neumaier) across blocks. */
-static inline __attribute__((always_inline)) int
-loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, double *scores,
-            double *opg, const int km, const int has_nu, const int ar_only, const int mode,
-            const int fmoff, const int fnar)
+/* The variance recursion's state between two residuals: sigma2_{t-1},
+ * e^2_{t-1} and their derivatives. */
+typedef struct {
+    double hprev, e2prev, dh[FIT_MAX_PARAMS], de2[FIT_MAX_PARAMS];
+} lik_state;
+
+/* What a stretch of residuals adds: the log-likelihood's sum, with t the
+ * sums behind the nu-gradient, the gradient and the score outer product. */
+typedef struct {
+    ksum acc, lu_acc;
+    double gnu, g[FIT_MAX_PARAMS], opg[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
+    int rc;
+} lik_part;
+
+/* Everything a stretch needs that is fixed in one pass. */
+typedef struct {
+    const double *ev, *dev, *y0, *arc;
+    const ptrdiff_t *alag;
+    double *hv, *ew, *scores;
+    double omega, alpha, beta, nu, nm2, inm2, dcst, amu, admu;
+    int inl, moff, nar, opg;
+} lik_ctx;
+
+/* Residuals LO..HI-1 (LO a multiple of LOG_BLOCK) from the state ST, which
+ * is left at HI; their sums into PT (zeroed by the caller); PT->rc is
+ * HN_EDOMAIN when a variance is not positive and finite. */
+static inline __attribute__((always_inline)) void
+lik_range(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, const int km,
+          const int has_nu, const int ar_only, const int mode, const int fmoff, const int fnar)
 {
-    const int np = km + 3 + has_nu, io = km;
-    const int kv = km + 3;                 /* parameters the variance depends on */
-    const size_t N = w->N;
+    const int np = km + 3 + has_nu, kv = km + 3;
     const int want_d = mode >= 1, want_rows = mode == 2;
-    if (!want_rows)
-        scores = opg = NULL;
-    const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
-    const double nu = has_nu ? th[np - 1] : 0.0;
-    const double *ev = w->e, *dev = w->de;
-    double *hv = w->h;
-
-    /* Pass 1 (ar_resid or fit_arma_resid): e_t, de_t/dtheta_mean, sum e_t^2
-     * and sum e_t de_t.  sigma2_0 = e2_0 = s2 = mean e_t^2 at these mean parameters. */
-    double dh[FIT_MAX_PARAMS];             /* d sigma2_t        (kv) */
-    double de2[FIT_MAX_PARAMS];            /* d e^2_{t-1}       (km) */
-    double g[FIT_MAX_PARAMS];              /* gradient          (np) */
-    double rowl[FIT_MAX_PARAMS];           /* this term's scores without SCORES */
-    double ssr;
-    /* with the window sums, e_t is formed in the main loop below instead */
-    const int inl = ar_only && w->mom;
-    int rc = inl ? ar_moments(w, th, &ssr, want_d ? de2 : NULL)
-             : ar_only ? ar_resid(w, th, &ssr, want_d ? de2 : NULL)
-                       : fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
-                                        want_d ? de2 : NULL);
-    /* Without MA terms de_t/dtheta_mean is (sum ar - 1, -(y_{t-lag} - mu)...):
-     * formed below as fit_arma_resid forms it, instead of stored and read back. */
-    const int moff = fmoff >= 0 ? fmoff : w->spec.mean ? 1 : 0;
-    const int nar = fmoff >= 0 ? fnar : w->spec.n_ar;
-    const double *y0 = w->y + w->start;    /* y_t for residual 0 */
-    double amu = 0.0, admu = 0.0, dloc[FIT_MAX_PARAMS], arc[FIT_MAX_TERMS];
+    const double omega = cx->omega, alpha = cx->alpha, beta = cx->beta, nu = cx->nu;
+    const double inm2 = cx->inm2, dcst = cx->dcst, amu = cx->amu, admu = cx->admu;
+    const int inl = cx->inl;
+    const int moff = fmoff >= 0 ? fmoff : cx->moff, nar = fmoff >= 0 ? fnar : cx->nar;
+    const double *ev = cx->ev, *dev = cx->dev, *y0 = cx->y0;
+    double arc[FIT_MAX_TERMS];             /* local copies: nothing stored aliases them */
     ptrdiff_t alag[FIT_MAX_TERMS];
-    if (ar_only) {
-        amu = moff ? th[0] : 0.0;
-        double sum_ar = 0.0;
-        for (int k = 0; k < nar; k++) {
-            arc[k] = th[moff + k];
-            sum_ar += th[moff + k];
-            alag[k] = (ptrdiff_t)w->spec.ar_lag[k];
-        }
-        admu = sum_ar - 1.0;
+    for (int j = 0; j < nar; j++) {
+        arc[j] = cx->arc[j];
+        alag[j] = cx->alag[j];
     }
-    double *ew = w->e;
-    if (rc != HN_OK)
-        return HN_EDOMAIN;
-    const double s2 = ssr / (double)N;
-    if (!(s2 > 0.0) || !isfinite(s2))
-        return HN_EDOMAIN;
-    w->s2 = s2;
-    if (opg)
-        memset(opg, 0, (size_t)np * (size_t)np * sizeof *opg);
+    double *hv = cx->hv, *ew = cx->ew, *scores = want_rows ? cx->scores : NULL;
+    double *opg = want_rows && cx->opg ? pt->opg : NULL;
+    double dh[FIT_MAX_PARAMS], de2[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], rowl[FIT_MAX_PARAMS];
+    double dloc[FIT_MAX_PARAMS];
     if (want_d) {
-        memset(g, 0, (size_t)np * sizeof *g);
-        memset(dh, 0, (size_t)kv * sizeof *dh);
-        for (int c = 0; c < km; c++) {
-            dh[c] = 2.0 * de2[c] / (double)N;  /* d sigma2_0 */
-            de2[c] = dh[c];                     /* d e2_0 */
+        UNROLL
+        for (int c = 0; c < kv; c++) {
+            dh[c] = st->dh[c];
+            g[c] = 0.0;
         }
+        UNROLL
+        for (int c = 0; c < km; c++)
+            de2[c] = st->de2[c];
     }
-
-    /* Constant of each term, and its derivative in nu. */
-    double cst, dcst = 0.0;
-    if (has_nu) {
-        cst = gsl_sf_lngamma(0.5 * (nu + 1.0)) - gsl_sf_lngamma(0.5 * nu) -
-              0.5 * log(M_PI * (nu - 2.0));
-        dcst = 0.5 * gsl_sf_psi(0.5 * (nu + 1.0)) - 0.5 * gsl_sf_psi(0.5 * nu) -
-               0.5 / (nu - 2.0);
-    } else {
-        cst = -0.5 * log(2.0 * M_PI);
-    }
-    const double nm2 = has_nu ? nu - 2.0 : 1.0, inm2 = 1.0 / nm2;
-
-    /* ll = sum_t -1/2 [log h_t + e_t^2/h_t] (normal) or
-     *      sum_t -1/2 [log h_t + (nu+1) log(1 + u_t)], u_t = e_t^2/(h_t (nu-2)) (t),
-     * plus N times the constant; with t the nu-gradient is
-     * N dcst - 1/2 sum log(1 + u_t) + (nu+1)/(2 (nu-2)) sum u_t/(1 + u_t). */
     ksum acc = { 0.0, 0.0 }, lu_acc = { 0.0, 0.0 };
     double gnu = 0.0;
-    double hprev = s2, e2prev = s2;
-    for (size_t i0 = 0; i0 < N; i0 += LOG_BLOCK) {
-        const size_t i1 = N - i0 > LOG_BLOCK ? i0 + LOG_BLOCK : N;
+    double hprev = st->hprev, e2prev = st->e2prev;
+    int bad = 0;
+    for (size_t i0 = lo; i0 < hi && !bad; i0 += LOG_BLOCK) {
+        const size_t i1 = hi - i0 > LOG_BLOCK ? i0 + LOG_BLOCK : hi;
         double ph = 1.0, pu = 1.0, sq = 0.0, sw = 0.0;
         int64_t eh = 0, eu = 0;
         for (size_t i = i0; i < i1; i++) {
@@ -412,16 +383,20 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
                 e = ev[i];
             }
             const double h = omega + alpha * e2prev + beta * hprev;
-            if (!(h >= DBL_MIN && h <= DBL_MAX))
-                return HN_EDOMAIN;
+            if (!(h >= DBL_MIN && h <= DBL_MAX)) {
+                bad = 1;
+                break;
+            }
             hv[i] = h;
             ph *= mantissa(h, &eh);
             const double e2 = e * e, r = 1.0 / h;
             double dl_dh = 0.0, dl_de = 0.0, dl_dnu = 0.0;
             if (has_nu) {
                 const double u = e2 * r * inm2, opu = 1.0 + u;
-                if (!(opu <= DBL_MAX))
-                    return HN_EDOMAIN;
+                if (!(opu <= DBL_MAX)) {
+                    bad = 1;
+                    break;
+                }
                 pu *= mantissa(opu, &eu);
                 const double iopu = 1.0 / opu, wgt = (nu + 1.0) * u * iopu;
                 sw += u * iopu;
@@ -486,6 +461,8 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
             hprev = h;
             e2prev = e2;
         }
+        if (bad)
+            break;
         const double lh = log(ph) + (double)eh * M_LN2;
         if (has_nu) {
             const double lu = log(pu) + (double)eu * M_LN2;
@@ -496,6 +473,318 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
             ksum_add(&acc, -0.5 * (lh + sq));
         }
     }
+    pt->acc = acc;
+    pt->lu_acc = lu_acc;
+    pt->gnu = gnu;
+    pt->rc = bad ? HN_EDOMAIN : HN_OK;
+    st->hprev = hprev;
+    st->e2prev = e2prev;
+    if (want_d) {
+        UNROLL
+        for (int c = 0; c < kv; c++) {
+            st->dh[c] = dh[c];
+            pt->g[c] = g[c];
+        }
+        UNROLL
+        for (int c = 0; c < km; c++)
+            st->de2[c] = de2[c];
+    }
+    (void)np;
+}
+
+/* lik_range with the counts and modes fixed at compile time, chosen from
+ * their run-time values: called from inside the parallel region, where a
+ * copy inlined into loglik_body would see them as variables only (OpenMP
+ * outlines the region before inlining). */
+static __attribute__((noinline)) void
+range_any(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, int km,
+          int nu, int ar, int mode, int fm, int fa)
+{
+#define RG(K, NU, AR, MODE, FM, FA) lik_range(cx, lo, hi, st, pt, K, NU, AR, MODE, FM, FA)
+    if (fm >= 0 && mode <= 1) {
+#define RF(M, A)                                                                 \
+        if (fm == (M) && fa == (A)) {                                            \
+            if (nu)                                                              \
+                mode ? RG((M) + (A), 1, 1, 1, M, A) : RG((M) + (A), 1, 1, 0, M, A); \
+            else                                                                 \
+                mode ? RG((M) + (A), 0, 1, 1, M, A) : RG((M) + (A), 0, 1, 0, M, A); \
+            return;                                                              \
+        }
+        RF(0, 0) RF(1, 0) RF(1, 1) RF(0, 1) RF(1, 2) RF(0, 2)
+#undef RF
+    }
+#define RB(K, MODE) \
+    (nu ? (ar ? RG(K, 1, 1, MODE, -1, 0) : RG(K, 1, 0, MODE, -1, 0)) \
+        : (ar ? RG(K, 0, 1, MODE, -1, 0) : RG(K, 0, 0, MODE, -1, 0)))
+    if (mode == 2) {
+        RB(km, 2);
+        return;
+    }
+    if (mode == 0) {
+        RB(km, 0);
+        return;
+    }
+    switch (km) {
+    case 0: RB(0, 1); return;
+    case 1: RB(1, 1); return;
+    case 2: RB(2, 1); return;
+    case 3: RB(3, 1); return;
+    case 4: RB(4, 1); return;
+    default: RB(km, 1); return;
+    }
+#undef RB
+#undef RG
+}
+
+/* The state at residual LO from a rough one (sigma2 = H0, no
+ * derivatives) W residuals earlier: the recursion forgets its start as
+ * beta^W.  Stores nothing.  0, or -1 when a variance is not positive. */
+static inline __attribute__((always_inline)) int
+lik_warm(const lik_ctx *k, size_t lo, size_t W, double h0, lik_state *st, const int km,
+         const int ar_only, const int mode, const int fmoff, const int fnar)
+{
+    const int kv = km + 3, want_d = mode >= 1;
+    const double omega = k->omega, alpha = k->alpha, beta = k->beta, amu = k->amu;
+    const double admu = k->admu;
+    const int inl = k->inl;
+    const int moff = fmoff >= 0 ? fmoff : k->moff, nar = fmoff >= 0 ? fnar : k->nar;
+    const double *ev = k->ev, *dev = k->dev, *y0 = k->y0;
+    double arc[FIT_MAX_TERMS];
+    ptrdiff_t alag[FIT_MAX_TERMS];
+    for (int j = 0; j < nar; j++) {
+        arc[j] = k->arc[j];
+        alag[j] = k->alag[j];
+    }
+    double dh[FIT_MAX_PARAMS], de2[FIT_MAX_PARAMS], dloc[FIT_MAX_PARAMS];
+    double hprev = h0, e2prev = h0;
+    UNROLL
+    for (int c = 0; c < kv; c++)
+        dh[c] = 0.0;
+    UNROLL
+    for (int c = 0; c < km; c++)
+        de2[c] = 0.0;
+    for (size_t i = lo - W; i < lo; i++) {
+        double e;
+        if (inl) {
+            const double *yt = y0 + i;
+            e = yt[0] - amu;
+            UNROLL
+            for (int j = 0; j < nar; j++)
+                e -= arc[j] * (yt[-alag[j]] - amu);
+        } else {
+            e = ev[i];
+        }
+        const double h = omega + alpha * e2prev + beta * hprev;
+        if (!(h >= DBL_MIN && h <= DBL_MAX))
+            return -1;
+        if (want_d) {
+            UNROLL
+            for (int c = 0; c < km; c++)
+                dh[c] = alpha * de2[c] + beta * dh[c];
+            dh[km] = 1.0 + beta * dh[km];
+            dh[km + 1] = e2prev + beta * dh[km + 1];
+            dh[km + 2] = hprev + beta * dh[km + 2];
+            const double *d;
+            if (ar_only) {
+                const double *yt = y0 + i;
+                if (moff)
+                    dloc[0] = admu;
+                UNROLL
+                for (int j = 0; j < nar; j++)
+                    dloc[moff + j] = -(yt[-alag[j]] - amu);
+                d = dloc;
+            } else {
+                d = dev + i * (size_t)km;
+            }
+            UNROLL
+            for (int c = 0; c < km; c++)
+                de2[c] = 2.0 * e * d[c];
+        }
+        hprev = h;
+        e2prev = e * e;
+    }
+    st->hprev = hprev;
+    st->e2prev = e2prev;
+    UNROLL
+    for (int c = 0; c < kv; c++)
+        st->dh[c] = want_d ? dh[c] : 0.0;
+    UNROLL
+    for (int c = 0; c < km; c++)
+        st->de2[c] = want_d ? de2[c] : 0.0;
+    return 0;
+}
+
+/* The same state, bit for bit, in what the pass reads. */
+static int same_state(const lik_state *a, const lik_state *b, int kv, int km, int want_d)
+{
+    if (memcmp(&a->hprev, &b->hprev, sizeof a->hprev) || memcmp(&a->e2prev, &b->e2prev, sizeof a->e2prev))
+        return 0;
+    return !want_d || (memcmp(a->dh, b->dh, (size_t)kv * sizeof *a->dh) == 0 &&
+                       memcmp(a->de2, b->de2, (size_t)km * sizeof *a->de2) == 0);
+}
+
+/* Series of at least this many residuals are taken as two stretches (the
+ * second from the half-way point, rounded down to a multiple of LOG_BLOCK),
+ * on two threads when they are free; shorter ones as one. */
+#define LIK_SPLIT_MIN 65536
+
+/* The pass behind fit_garch_loglik for KM mean parameters and Student-t
+ * (HAS_NU = 1) or normal innovations, AR_ONLY = 1 when the mean has no MA
+ * terms, then with FMOFF (1: a constant) and FNAR AR terms when these are
+ * fixed at compile time (FMOFF < 0: read from the spec); the caller has
+ * counted the pass and checked TH.  Sums and
+ * derivatives live in locals (no aliasing with the output arrays).  The
+ * log-likelihood's sums are plain within a block of LOG_BLOCK terms and
+ * compensated (Neumaier) across blocks. */
+static inline __attribute__((always_inline)) int
+loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, double *scores,
+            double *opg, const int km, const int has_nu, const int ar_only, const int mode,
+            const int fmoff, const int fnar)
+{
+    const int np = km + 3 + has_nu, io = km;
+    const int kv = km + 3;                 /* parameters the variance depends on */
+    const size_t N = w->N;
+    const int want_d = mode >= 1, want_rows = mode == 2;
+    if (!want_rows)
+        scores = opg = NULL;
+    const double omega = th[io], alpha = th[io + 1], beta = th[io + 2];
+    const double nu = has_nu ? th[np - 1] : 0.0;
+    const double *ev = w->e, *dev = w->de;
+
+    /* Pass 1 (ar_resid or fit_arma_resid): e_t, de_t/dtheta_mean, sum e_t^2
+     * and sum e_t de_t.  sigma2_0 = e2_0 = s2 = mean e_t^2 at these mean parameters. */
+    double dh[FIT_MAX_PARAMS];             /* d sigma2_t        (kv) */
+    double de2[FIT_MAX_PARAMS];            /* d e^2_{t-1}       (km) */
+    double g[FIT_MAX_PARAMS];              /* gradient          (np) */
+    double ssr;
+    /* with the window sums, e_t is formed in the main loop below instead */
+    const int inl = ar_only && w->mom;
+    int rc = inl ? ar_moments(w, th, &ssr, want_d ? de2 : NULL)
+             : ar_only ? ar_resid(w, th, &ssr, want_d ? de2 : NULL)
+                       : fit_arma_resid(w->aw, w->y, w->n, th, w->e, want_d ? w->de : NULL, &ssr,
+                                        want_d ? de2 : NULL);
+    /* Without MA terms de_t/dtheta_mean is (sum ar - 1, -(y_{t-lag} - mu)...):
+     * formed below as fit_arma_resid forms it, instead of stored and read back. */
+    const int moff = fmoff >= 0 ? fmoff : w->spec.mean ? 1 : 0;
+    const int nar = fmoff >= 0 ? fnar : w->spec.n_ar;
+    const double *y0 = w->y + w->start;    /* y_t for residual 0 */
+    double amu = 0.0, admu = 0.0, arc[FIT_MAX_TERMS];
+    ptrdiff_t alag[FIT_MAX_TERMS];
+    if (ar_only) {
+        amu = moff ? th[0] : 0.0;
+        double sum_ar = 0.0;
+        for (int k = 0; k < nar; k++) {
+            arc[k] = th[moff + k];
+            sum_ar += th[moff + k];
+            alag[k] = (ptrdiff_t)w->spec.ar_lag[k];
+        }
+        admu = sum_ar - 1.0;
+    }
+    if (rc != HN_OK)
+        return HN_EDOMAIN;
+    const double s2 = ssr / (double)N;
+    if (!(s2 > 0.0) || !isfinite(s2))
+        return HN_EDOMAIN;
+    w->s2 = s2;
+    if (want_d) {
+        memset(g, 0, (size_t)np * sizeof *g);
+        memset(dh, 0, (size_t)kv * sizeof *dh);
+        for (int c = 0; c < km; c++) {
+            dh[c] = 2.0 * de2[c] / (double)N;  /* d sigma2_0 */
+            de2[c] = dh[c];                     /* d e2_0 */
+        }
+    }
+
+    /* Constant of each term, and its derivative in nu. */
+    double cst, dcst = 0.0;
+    if (has_nu) {
+        cst = gsl_sf_lngamma(0.5 * (nu + 1.0)) - gsl_sf_lngamma(0.5 * nu) -
+              0.5 * log(M_PI * (nu - 2.0));
+        dcst = 0.5 * gsl_sf_psi(0.5 * (nu + 1.0)) - 0.5 * gsl_sf_psi(0.5 * nu) -
+               0.5 / (nu - 2.0);
+    } else {
+        cst = -0.5 * log(2.0 * M_PI);
+    }
+    const double nm2 = has_nu ? nu - 2.0 : 1.0, inm2 = 1.0 / nm2;
+
+    /* ll = sum_t -1/2 [log h_t + e_t^2/h_t] (normal) or
+     *      sum_t -1/2 [log h_t + (nu+1) log(1 + u_t)], u_t = e_t^2/(h_t (nu-2)) (t),
+     * plus N times the constant; with t the nu-gradient is
+     * N dcst - 1/2 sum log(1 + u_t) + (nu+1)/(2 (nu-2)) sum u_t/(1 + u_t). */
+
+    lik_ctx k = { ev, dev, y0, arc, alag, w->h, w->e, scores,
+                  omega, alpha, beta, nu, nm2, inm2, dcst, amu, admu,
+                  inl, moff, nar, opg != NULL };
+    lik_state st0, st1, warm;
+    st0.hprev = st0.e2prev = s2;
+    if (want_d) {
+        memcpy(st0.dh, dh, (size_t)kv * sizeof *dh);
+        memcpy(st0.de2, de2, (size_t)km * sizeof *de2);
+    }
+    const size_t split = N >= LIK_SPLIT_MIN ? (N / 2) / LOG_BLOCK * LOG_BLOCK : N;
+    /* the second stretch on its own thread starts from the state W residuals
+     * before it forgets (beta^W below 1e-20), checked bit for bit against the
+     * first stretch's end; where they differ it runs again from that end */
+    size_t W = 0;
+    if (split < N && beta > 0.0 && beta < 1.0) {
+        double wd = ceil(46.0 / -log(beta));
+        W = wd < (double)(split / 2) ? (size_t)wd : 0;
+    } else if (split < N && beta == 0.0) {
+        W = 1;
+    }
+    const int par = W > 0 && !omp_in_parallel() && omp_get_max_threads() > 1;
+    lik_part *pp = malloc(2 * sizeof *pp);
+    if (!pp)
+        return HN_ENOMEM;
+    memset(pp, 0, 2 * sizeof *pp);
+    int again = split < N;
+    if (par) {
+        int wok = 0;
+#pragma omp parallel num_threads(2)
+        {
+            if (omp_get_thread_num() == 0) {
+                range_any(&k, 0, split, &st0, &pp[0], km, has_nu, ar_only, mode, fmoff, fnar);
+            } else {
+                wok = lik_warm(&k, split, W, s2, &warm, km, ar_only, mode, fmoff, fnar) == 0;
+                if (wok) {
+                    st1 = warm;
+                    range_any(&k, split, N, &st1, &pp[1], km, has_nu, ar_only, mode, fmoff, fnar);
+                }
+            }
+        }
+        again = !wok || (pp[0].rc == HN_OK && !same_state(&st0, &warm, kv, km, want_d));
+        if (again)
+            memset(&pp[1], 0, sizeof pp[1]);
+    } else {
+        range_any(&k, 0, split, &st0, &pp[0], km, has_nu, ar_only, mode, fmoff, fnar);
+    }
+    if (again && pp[0].rc == HN_OK) {
+        st1 = st0;
+        range_any(&k, split, N, &st1, &pp[1], km, has_nu, ar_only, mode, fmoff, fnar);
+    }
+    if (pp[0].rc != HN_OK || (split < N && pp[1].rc != HN_OK)) {
+        free(pp);
+        return HN_EDOMAIN;
+    }
+    /* the two stretches' sums, in order */
+    ksum acc = pp[0].acc, lu_acc = pp[0].lu_acc;
+    double gnu = pp[0].gnu;
+    if (split < N) {
+        ksum_add(&acc, pp[1].acc.s);
+        acc.c += pp[1].acc.c;
+        ksum_add(&lu_acc, pp[1].lu_acc.s);
+        lu_acc.c += pp[1].lu_acc.c;
+        gnu += pp[1].gnu;
+    }
+    if (want_d)
+        for (int c = 0; c < kv; c++)
+            g[c] = split < N ? pp[0].g[c] + pp[1].g[c] : pp[0].g[c];
+    if (opg)
+        for (int a = 0; a < np; a++)
+            for (int b = 0; b <= a; b++)
+                opg[a * np + b] = split < N ? pp[0].opg[a * np + b] + pp[1].opg[a * np + b]
+                                            : pp[0].opg[a * np + b];
+    free(pp);
 
     double total = ksum_value(&acc) + (double)N * cst;
     if (!isfinite(total))
