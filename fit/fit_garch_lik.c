@@ -234,6 +234,51 @@ static inline double mantissa(double v, int64_t *ex)
     return v;
 }
 
+/* e_t of a mean without MA terms from the series, by the operations of
+ * ar_resid (so the same value). */
+static inline __attribute__((always_inline)) double
+ar_resid_at(const double *yt, double amu, const double *arc, const ptrdiff_t *alag, const int nar)
+{
+    double e = yt[0] - amu;
+    UNROLL
+    for (int k = 0; k < nar; k++)
+        e -= arc[k] * (yt[-alag[k]] - amu);
+    return e;
+}
+
+/* One step of the derivative recursion of sigma2_t:
+ * d sigma2_t = [mean: alpha d e2_{t-1}; omega 1; alpha e2_{t-1}; beta sigma2_{t-1}]
+ *              + beta d sigma2_{t-1}. */
+static inline __attribute__((always_inline)) void
+dh_step(double *dh, const double *de2, double alpha, double beta, double e2prev, double hprev,
+        const int km)
+{
+    UNROLL
+    for (int c = 0; c < km; c++)
+        dh[c] = alpha * de2[c] + beta * dh[c];
+    dh[km] = 1.0 + beta * dh[km];
+    dh[km + 1] = e2prev + beta * dh[km + 1];
+    dh[km + 2] = hprev + beta * dh[km + 2];
+}
+
+/* de_t/dtheta_mean for residual I: without MA terms (sum ar - 1,
+ * -(y_{t-lag} - mu)...) formed into DLOC as fit_arma_resid forms it, else
+ * the row fit_arma_resid stored in DEV. */
+static inline __attribute__((always_inline)) const double *
+mean_derivs_at(const double *yt, size_t i, const double *dev, double *dloc, double amu,
+               double admu, const ptrdiff_t *alag, const int km, const int ar_only,
+               const int moff, const int nar)
+{
+    if (!ar_only)
+        return dev + i * (size_t)km;
+    if (moff)
+        dloc[0] = admu;
+    UNROLL
+    for (int k = 0; k < nar; k++)
+        dloc[moff + k] = -(yt[-alag[k]] - amu);
+    return dloc;
+}
+
 /* Residuals of a mean without MA terms into w->e (the operations of
  * fit_arma_resid, so the same values), their sum of squares *SSR and, when
  * GSUM is not NULL, sum_t e_t de_t/dtheta_mean: no recursion, so one
@@ -263,9 +308,7 @@ ar_resid_body(fit_garch_work *w, const double *th, double *ssr, double *gsum, co
             bey[k] = 0.0;
         for (size_t i = i0; i < i1; i++) {
             const double *yt = y0 + i;
-            double et = yt[0] - mu;
-            for (int k = 0; k < nar; k++)
-                et -= ar[k] * (yt[-lag[k]] - mu);
+            const double et = ar_resid_at(yt, mu, ar, lag, nar);
             ev[i] = et;
             be2 += et * et;
             if (gsum) {
@@ -372,16 +415,10 @@ lik_range(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, 
         int64_t eh = 0, eu = 0;
         for (size_t i = i0; i < i1; i++) {
             double e;
-            if (inl) {                     /* the operations of ar_resid */
-                const double *yt = y0 + i;
-                e = yt[0] - amu;
-                UNROLL
-                for (int k = 0; k < nar; k++)
-                    e -= arc[k] * (yt[-alag[k]] - amu);
-                ew[i] = e;
-            } else {
+            if (inl)
+                ew[i] = e = ar_resid_at(y0 + i, amu, arc, alag, nar);
+            else
                 e = ev[i];
-            }
             const double h = omega + alpha * e2prev + beta * hprev;
             if (!(h >= DBL_MIN && h <= DBL_MAX)) {
                 bad = 1;
@@ -416,26 +453,9 @@ lik_range(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, 
             }
 
             if (want_d) {
-                /* d sigma2_t = [mean: alpha d e2_{t-1}; omega 1; alpha e2_{t-1};
-                 *               beta sigma2_{t-1}] + beta d sigma2_{t-1} */
-                UNROLL
-                for (int c = 0; c < km; c++)
-                    dh[c] = alpha * de2[c] + beta * dh[c];
-                dh[km] = 1.0 + beta * dh[km];
-                dh[km + 1] = e2prev + beta * dh[km + 1];
-                dh[km + 2] = hprev + beta * dh[km + 2];
-                const double *d;
-                if (ar_only) {
-                    const double *yt = y0 + i;
-                    if (moff)
-                        dloc[0] = admu;
-                    UNROLL
-                    for (int k = 0; k < nar; k++)
-                        dloc[moff + k] = -(yt[-alag[k]] - amu);
-                    d = dloc;
-                } else {
-                    d = dev + i * (size_t)km;
-                }
+                dh_step(dh, de2, alpha, beta, e2prev, hprev, km);
+                const double *d = mean_derivs_at(y0 + i, i, dev, dloc, amu, admu, alag, km,
+                                                 ar_only, moff, nar);
                 double *row = scores ? scores + i * (size_t)np : rowl;
                 UNROLL
                 for (int c = 0; c < km; c++)
@@ -564,38 +584,14 @@ lik_warm(const lik_ctx *k, size_t lo, size_t W, double h0, lik_state *st, const 
     for (int c = 0; c < km; c++)
         de2[c] = 0.0;
     for (size_t i = lo - W; i < lo; i++) {
-        double e;
-        if (inl) {
-            const double *yt = y0 + i;
-            e = yt[0] - amu;
-            UNROLL
-            for (int j = 0; j < nar; j++)
-                e -= arc[j] * (yt[-alag[j]] - amu);
-        } else {
-            e = ev[i];
-        }
+        const double e = inl ? ar_resid_at(y0 + i, amu, arc, alag, nar) : ev[i];
         const double h = omega + alpha * e2prev + beta * hprev;
         if (!(h >= DBL_MIN && h <= DBL_MAX))
             return -1;
         if (want_d) {
-            UNROLL
-            for (int c = 0; c < km; c++)
-                dh[c] = alpha * de2[c] + beta * dh[c];
-            dh[km] = 1.0 + beta * dh[km];
-            dh[km + 1] = e2prev + beta * dh[km + 1];
-            dh[km + 2] = hprev + beta * dh[km + 2];
-            const double *d;
-            if (ar_only) {
-                const double *yt = y0 + i;
-                if (moff)
-                    dloc[0] = admu;
-                UNROLL
-                for (int j = 0; j < nar; j++)
-                    dloc[moff + j] = -(yt[-alag[j]] - amu);
-                d = dloc;
-            } else {
-                d = dev + i * (size_t)km;
-            }
+            dh_step(dh, de2, alpha, beta, e2prev, hprev, km);
+            const double *d = mean_derivs_at(y0 + i, i, dev, dloc, amu, admu, alag, km, ar_only,
+                                             moff, nar);
             UNROLL
             for (int c = 0; c < km; c++)
                 de2[c] = 2.0 * e * d[c];
