@@ -357,8 +357,9 @@ static void test_ar_window_sums(void **state)
 }
 
 /* A long series is taken as two stretches, the second on its own thread
- * from a state recovered by warming up and checked bit for bit: the value,
- * gradient and score outer product must not depend on the threads. */
+ * from a state recovered by warming up: the value, gradient, score outer
+ * product and Hessian must not depend on the threads, and the Hessian so
+ * summed must still be the derivative of the gradient. */
 static void test_threads_same_bits(void **state)
 {
     (void)state;
@@ -374,16 +375,38 @@ static void test_threads_same_bits(void **state)
         /* Invented series from fit_simulate, seed 20261203 + k. */
         assert_int_equal(fit_simulate(&s, truth[k], n, 500, 20261203UL + (unsigned long)k, y), HN_OK);
         double ll[2], g[2][FIT_MAX_PARAMS], B[2][FIT_MAX_PARAMS * FIT_MAX_PARAMS];
+        double H[2][FIT_MAX_PARAMS * FIT_MAX_PARAMS], l2;
         for (int t = 0; t < 2; t++) {
             omp_set_num_threads(t + 1);
             fit_garch_work w;
             assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
             assert_int_equal(fit_garch_loglik(&w, truth[k], &ll[t], g[t], NULL, B[t]), HN_OK);
+            assert_int_equal(fit_garch_hessian(&w, truth[k], &l2, NULL, H[t], NULL), HN_OK);
+            assert_true(l2 == ll[t]);
+            if (t == 1) {
+                /* the halves' Hessian against differences of the gradient */
+                double th[FIT_MAX_PARAMS], gp[FIT_MAX_PARAMS], gm[FIT_MAX_PARAMS];
+                memcpy(th, truth[k], (size_t)np * sizeof *th);
+                for (int i = 0; i < np; i++) {
+                    double a = th[i], h = 1e-5 * (fabs(a) > 1e-2 ? fabs(a) : 1e-2);
+                    th[i] = a + h;
+                    assert_int_equal(fit_garch_loglik(&w, th, &l2, gp, NULL, NULL), HN_OK);
+                    th[i] = a - h;
+                    assert_int_equal(fit_garch_loglik(&w, th, &l2, gm, NULL, NULL), HN_OK);
+                    th[i] = a;
+                    for (int j = 0; j < np; j++) {
+                        double fd = (gp[j] - gm[j]) / (2.0 * h);
+                        double scale = sqrt(fabs(H[1][i * np + i] * H[1][j * np + j]));
+                        assert_true(fabs(H[1][j * np + i] - fd) <= 1e-6 * scale);
+                    }
+                }
+            }
             fit_garch_work_free(&w);
         }
         assert_memory_equal(&ll[0], &ll[1], sizeof ll[0]);
         assert_memory_equal(g[0], g[1], (size_t)np * sizeof g[0][0]);
         assert_memory_equal(B[0], B[1], (size_t)(np * np) * sizeof B[0][0]);
+        assert_memory_equal(H[0], H[1], (size_t)(np * np) * sizeof H[0][0]);
     }
     omp_set_num_threads(omp_get_num_procs());
     free(y);
