@@ -358,7 +358,8 @@ typedef struct {
  * sums behind the nu-gradient, the gradient and the score outer product. */
 typedef struct {
     ksum acc, lu_acc;
-    double gnu, g[FIT_MAX_PARAMS], opg[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
+    double gnu, g[FIT_MAX_PARAMS];
+    double *opg;            /* np x np lower triangle, zeroed by the caller; NULL: none */
     int rc;
 } lik_part;
 
@@ -368,7 +369,7 @@ typedef struct {
     const ptrdiff_t *alag;
     double *hv, *ew, *scores;
     double omega, alpha, beta, nu, nm2, inm2, dcst, amu, admu;
-    int inl, moff, nar, opg;
+    int inl, moff, nar;
 } lik_ctx;
 
 /* Residuals LO..HI-1 (LO a multiple of LOG_BLOCK) from the state ST, which
@@ -392,7 +393,7 @@ lik_range(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, 
         alag[j] = cx->alag[j];
     }
     double *hv = cx->hv, *ew = cx->ew, *scores = want_rows ? cx->scores : NULL;
-    double *opg = want_rows && cx->opg ? pt->opg : NULL;
+    double *opg = want_rows ? pt->opg : NULL;
     double dh[FIT_MAX_PARAMS], de2[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], rowl[FIT_MAX_PARAMS];
     double dloc[FIT_MAX_PARAMS];
     if (want_d) {
@@ -710,7 +711,7 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
 
     lik_ctx k = { ev, dev, y0, arc, alag, w->h, w->e, scores,
                   omega, alpha, beta, nu, nm2, inm2, dcst, amu, admu,
-                  inl, moff, nar, opg != NULL };
+                  inl, moff, nar };
     lik_state st0, st1, warm;
     st0.hprev = st0.e2prev = s2;
     if (want_d) {
@@ -729,10 +730,19 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
         W = 1;
     }
     const int par = W > 0 && !omp_in_parallel() && omp_get_max_threads() > 1;
-    lik_part *pp = malloc(2 * sizeof *pp);
-    if (!pp)
-        return HN_ENOMEM;
-    memset(pp, 0, 2 * sizeof *pp);
+    lik_part pp[2];
+    memset(pp, 0, sizeof pp);
+    double *opg1 = NULL;                   /* the second stretch's outer product */
+    if (opg) {
+        memset(opg, 0, (size_t)np * (size_t)np * sizeof *opg);
+        pp[0].opg = opg;
+        if (split < N) {
+            opg1 = calloc((size_t)np * (size_t)np, sizeof *opg1);
+            if (!opg1)
+                return HN_ENOMEM;
+            pp[1].opg = opg1;
+        }
+    }
     int again = split < N;
     if (par) {
         int wok = 0;
@@ -749,8 +759,13 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
             }
         }
         again = !wok || (pp[0].rc == HN_OK && !same_state(&st0, &warm, kv, km, want_d));
-        if (again)
+        if (again) {
             memset(&pp[1], 0, sizeof pp[1]);
+            if (opg1) {
+                memset(opg1, 0, (size_t)np * (size_t)np * sizeof *opg1);
+                pp[1].opg = opg1;
+            }
+        }
     } else {
         range_any(&k, 0, split, &st0, &pp[0], km, has_nu, ar_only, mode, fmoff, fnar);
     }
@@ -759,7 +774,7 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
         range_any(&k, split, N, &st1, &pp[1], km, has_nu, ar_only, mode, fmoff, fnar);
     }
     if (pp[0].rc != HN_OK || (split < N && pp[1].rc != HN_OK)) {
-        free(pp);
+        free(opg1);
         return HN_EDOMAIN;
     }
     /* the two stretches' sums, in order */
@@ -775,12 +790,11 @@ loglik_body(fit_garch_work *w, const double *th, double *ll, double *grad, doubl
     if (want_d)
         for (int c = 0; c < kv; c++)
             g[c] = split < N ? pp[0].g[c] + pp[1].g[c] : pp[0].g[c];
-    if (opg)
+    if (opg1)
         for (int a = 0; a < np; a++)
             for (int b = 0; b <= a; b++)
-                opg[a * np + b] = split < N ? pp[0].opg[a * np + b] + pp[1].opg[a * np + b]
-                                            : pp[0].opg[a * np + b];
-    free(pp);
+                opg[a * np + b] += opg1[a * np + b];
+    free(opg1);
 
     double total = ksum_value(&acc) + (double)N * cst;
     if (!isfinite(total))
