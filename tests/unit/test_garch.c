@@ -199,6 +199,33 @@ static void check_gradient(const char *text, const double *truth, const double *
 /* The Hessian of fit_garch_hessian against central differences of the
  * analytic gradient (itself checked above), and its score outer product
  * against fit_garch_loglik's; a mean with too many terms is refused. */
+/* H (np x np, the analytic Hessian at AT) against central differences of
+ * the analytic gradient on W: O(h^2) truncation, ~1e-7 relative to the row's
+ * scale, so 1e-6 of it. */
+static void hessian_matches_differences(fit_garch_work *w, const double *at, int np,
+                                        const double *H, const char *text)
+{
+    double th[FIT_MAX_PARAMS], gp[FIT_MAX_PARAMS], gm[FIT_MAX_PARAMS], l2;
+    memcpy(th, at, (size_t)np * sizeof *th);
+    for (int i = 0; i < np; i++) {
+        double a = th[i], h = 1e-5 * (fabs(a) > 1e-2 ? fabs(a) : 1e-2);
+        th[i] = a + h;
+        assert_int_equal(fit_garch_loglik(w, th, &l2, gp, NULL, NULL), HN_OK);
+        th[i] = a - h;
+        assert_int_equal(fit_garch_loglik(w, th, &l2, gm, NULL, NULL), HN_OK);
+        th[i] = a;
+        for (int j = 0; j < np; j++) {
+            double fd = (gp[j] - gm[j]) / (2.0 * h);
+            double scale = sqrt(fabs(H[i * np + i] * H[j * np + j]));
+            if (!(fabs(H[j * np + i] - fd) <= 1e-6 * scale)) {
+                print_error("%s: H[%d][%d] analytic %.12g, differences %.12g\n", text, j, i,
+                            H[j * np + i], fd);
+                fail();
+            }
+        }
+    }
+}
+
 static void check_hessian(const char *text, const double *truth, const double *at)
 {
     fit_spec s = spec_of(text);
@@ -210,33 +237,19 @@ static void check_hessian(const char *text, const double *truth, const double *a
     assert_int_equal(fit_simulate(&s, truth, n, 200, 20261201UL, y), HN_OK);
     fit_garch_work w;
     assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
-    double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], gp[FIT_MAX_PARAMS], gm[FIT_MAX_PARAMS];
+    double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS];
     double H[FIT_MAX_PARAMS * FIT_MAX_PARAMS], B[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
     double B2[FIT_MAX_PARAMS * FIT_MAX_PARAMS], ll, l2;
     memcpy(th, at, (size_t)np * sizeof *th);
     assert_int_equal(fit_garch_hessian(&w, th, &ll, g, H, B), HN_OK);
     assert_int_equal(fit_garch_loglik(&w, th, &l2, NULL, NULL, B2), HN_OK);
     assert_true(ll == l2);                     /* the same pass underneath */
-    for (int i = 0; i < np; i++) {
-        double a = th[i], h = 1e-5 * (fabs(a) > 1e-2 ? fabs(a) : 1e-2);
-        th[i] = a + h;
-        assert_int_equal(fit_garch_loglik(&w, th, &l2, gp, NULL, NULL), HN_OK);
-        th[i] = a - h;
-        assert_int_equal(fit_garch_loglik(&w, th, &l2, gm, NULL, NULL), HN_OK);
-        th[i] = a;
+    hessian_matches_differences(&w, th, np, H, text);
+    for (int i = 0; i < np; i++)
         for (int j = 0; j < np; j++) {
-            double fd = (gp[j] - gm[j]) / (2.0 * h);
-            /* O(h^2) truncation: ~1e-7 relative to the row's scale */
-            double scale = sqrt(fabs(H[i * np + i] * H[j * np + j]));
-            if (!(fabs(H[j * np + i] - fd) <= 1e-6 * scale)) {
-                print_error("%s: H[%d][%d] analytic %.12g, differences %.12g\n", text, j, i,
-                            H[j * np + i], fd);
-                fail();
-            }
             TU_NEAR(H[i * np + j], H[j * np + i], 0.0);
             TU_NEAR(B[i * np + j], B2[i * np + j], 1e-12 * fabs(B2[i * np + j]));
         }
-    }
     fit_garch_work_free(&w);
     free(y);
 }
@@ -383,24 +396,8 @@ static void test_threads_same_bits(void **state)
             assert_int_equal(fit_garch_loglik(&w, truth[k], &ll[t], g[t], NULL, B[t]), HN_OK);
             assert_int_equal(fit_garch_hessian(&w, truth[k], &l2, NULL, H[t], NULL), HN_OK);
             assert_true(l2 == ll[t]);
-            if (t == 1) {
-                /* the halves' Hessian against differences of the gradient */
-                double th[FIT_MAX_PARAMS], gp[FIT_MAX_PARAMS], gm[FIT_MAX_PARAMS];
-                memcpy(th, truth[k], (size_t)np * sizeof *th);
-                for (int i = 0; i < np; i++) {
-                    double a = th[i], h = 1e-5 * (fabs(a) > 1e-2 ? fabs(a) : 1e-2);
-                    th[i] = a + h;
-                    assert_int_equal(fit_garch_loglik(&w, th, &l2, gp, NULL, NULL), HN_OK);
-                    th[i] = a - h;
-                    assert_int_equal(fit_garch_loglik(&w, th, &l2, gm, NULL, NULL), HN_OK);
-                    th[i] = a;
-                    for (int j = 0; j < np; j++) {
-                        double fd = (gp[j] - gm[j]) / (2.0 * h);
-                        double scale = sqrt(fabs(H[1][i * np + i] * H[1][j * np + j]));
-                        assert_true(fabs(H[1][j * np + i] - fd) <= 1e-6 * scale);
-                    }
-                }
-            }
+            if (t == 1)                        /* the halves' Hessian, differentiated */
+                hessian_matches_differences(&w, truth[k], np, H[1], specs[k]);
             fit_garch_work_free(&w);
         }
         assert_memory_equal(&ll[0], &ll[1], sizeof ll[0]);
