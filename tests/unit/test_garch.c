@@ -141,17 +141,25 @@ static void test_dmbp_loglik_against_scipy(void **state)
 
 /* ---- (2) analytic gradient against central differences ----------------- */
 
-static void check_gradient(const char *text, const double *truth, const double *at)
+/* N values of TEXT simulated at TRUTH (fit_simulate, burn-in 200, SEED) into
+ * a new *Y, and a work sized for them in *W; returns the parameter count. */
+static int simulated_work(const char *text, const double *truth, size_t n, unsigned long seed,
+                          double **y, fit_garch_work *w)
 {
     fit_spec s = spec_of(text);
-    const int np = fit_spec_nparams(&s);
-    const size_t n = 1500;
-    double *y = malloc(n * sizeof *y);
-    assert_non_null(y);
-    /* Invented series from fit_simulate, seed 20240917. */
-    assert_int_equal(fit_simulate(&s, truth, n, 200, 20240917UL, y), HN_OK);
+    *y = malloc(n * sizeof **y);
+    assert_non_null(*y);
+    assert_int_equal(fit_simulate(&s, truth, n, 200, seed, *y), HN_OK);
+    assert_int_equal(fit_garch_work_init(w, *y, n, &s), HN_OK);
+    return fit_spec_nparams(&s);
+}
+
+static void check_gradient(const char *text, const double *truth, const double *at)
+{
+    double *y;
     fit_garch_work w;
-    assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
+    /* Invented series from fit_simulate, seed 20240917. */
+    const int np = simulated_work(text, truth, 1500, 20240917UL, &y, &w);
     double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], ll;
     memcpy(th, at, (size_t)np * sizeof *th);
     assert_int_equal(fit_garch_loglik(&w, th, &ll, g, NULL, NULL), HN_OK);
@@ -228,15 +236,10 @@ static void hessian_matches_differences(fit_garch_work *w, const double *at, int
 
 static void check_hessian(const char *text, const double *truth, const double *at)
 {
-    fit_spec s = spec_of(text);
-    const int np = fit_spec_nparams(&s);
-    const size_t n = 2000;
-    double *y = malloc(n * sizeof *y);
-    assert_non_null(y);
-    /* Invented series from fit_simulate, seed 20261201. */
-    assert_int_equal(fit_simulate(&s, truth, n, 200, 20261201UL, y), HN_OK);
+    double *y;
     fit_garch_work w;
-    assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
+    /* Invented series from fit_simulate, seed 20261201. */
+    const int np = simulated_work(text, truth, 2000, 20261201UL, &y, &w);
     double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS];
     double H[FIT_MAX_PARAMS * FIT_MAX_PARAMS], B[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
     double B2[FIT_MAX_PARAMS * FIT_MAX_PARAMS], ll, l2;
