@@ -4,6 +4,7 @@
 #include "fit_garch.h"
 #include "fit_internal.h"
 #include "fit_optim.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -183,10 +184,10 @@ int fit_result_init(fit_result *res, const fit_spec *spec, size_t n, size_t star
         res->se_robust[i] = NAN;
     }
     res->loglik = res->aic = res->aicc = res->bic = res->hq = NAN;
-    res->resid = calloc(res->n_eff, sizeof *res->resid);
-    res->std_resid = calloc(res->n_eff, sizeof *res->std_resid);
+    res->resid = hn_calloc_long(res->n_eff * sizeof *res->resid);
+    res->std_resid = hn_calloc_long(res->n_eff * sizeof *res->std_resid);
     if (with_sigma_t)
-        res->sigma_t = calloc(res->n_eff, sizeof *res->sigma_t);
+        res->sigma_t = hn_calloc_long(res->n_eff * sizeof *res->sigma_t);
     if (!res->resid || !res->std_resid || (with_sigma_t && !res->sigma_t)) {
         fit_result_free(res);
         memset(res, 0, sizeof *res);

@@ -3,6 +3,7 @@
 #include "fit_arma_pass.h"
 #include "fit_internal.h"
 #include "fit_optim.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <float.h>
@@ -1107,9 +1108,8 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
     /* the standardised series lives in res->std_resid, grown to n values,
      * until the standardised residuals replace it at the end (after the last
      * pass): one array fewer to allocate and touch */
-    double *z = realloc(res->std_resid, n * sizeof *z);
-    if (z)
-        res->std_resid = z;
+    free(res->std_resid);
+    double *z = res->std_resid = hn_alloc_long(n * sizeof *z);
     double *gs = malloc(((size_t)nm + 1) * sizeof *gs);
     double *H = malloc(((size_t)nm * nm + 1) * sizeof *H);
     fit_arma_ws *ws = fit_arma_ws_alloc(spec);

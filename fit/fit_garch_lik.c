@@ -1,5 +1,6 @@
 /* fit_garch_lik.c - ARMA-GARCH(1,1) conditional log-likelihood with its analytic gradient. */
 #include "fit_garch_lik.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <float.h>
@@ -192,9 +193,9 @@ int fit_garch_work_init(fit_garch_work *w, const double *y, size_t n, const fit_
     w->np = fit_spec_nparams(spec);
     w->i_omega = w->k_mean;
     w->has_nu = spec->dist == FIT_DIST_T;
-    w->e = malloc(w->N * sizeof *w->e);
-    w->h = malloc(w->N * sizeof *w->h);
-    w->de = w->k_mean ? malloc(w->N * (size_t)w->k_mean * sizeof *w->de) : NULL;
+    w->e = hn_alloc_long(w->N * sizeof *w->e);
+    w->h = hn_alloc_long(w->N * sizeof *w->h);
+    w->de = w->k_mean ? hn_alloc_long(w->N * (size_t)w->k_mean * sizeof *w->de) : NULL;
     w->aw = fit_arma_ws_alloc(spec);
     if (!w->e || !w->h || (w->k_mean && !w->de) || !w->aw) {
         fit_garch_work_free(w);

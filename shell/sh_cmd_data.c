@@ -34,20 +34,9 @@ static int cmd_load(sh_session *s, sh_words *w)
     if (rc != HN_OK)
         return sh_fail(s, -1, "%s", e.message);
 
-    double *y = malloc(d.n * sizeof *y);
-    double *raw = malloc(d.n * sizeof *raw);
-    if (!y || !raw) {
-        free(y);
-        free(raw);
-        sh_data_free(&d);
-        return sh_fail(s, -1, "out of memory loading %zu values", d.n);
-    }
-    memcpy(y, d.y, d.n * sizeof *y);
-    memcpy(raw, d.y, d.n * sizeof *raw);
-    free(s->raw);
-    s->raw = raw;
-    s->n_raw = d.n;
-    sh_set_series(s, y, d.n);
+    /* the reader's array becomes the working series (and the loaded values) */
+    sh_load_series(s, d.y, d.n);
+    d.y = NULL;
     s->loaded = 1;
     snprintf(s->path, sizeof s->path, "%s", w->word[fi]);
     snprintf(s->column, sizeof s->column, "%s", d.column_name ? d.column_name : "");
@@ -179,11 +168,7 @@ static int cmd_transform(sh_session *s, sh_words *w)
     int rc;
 
     if (!strcmp(kind, "reset")) {
-        double *y = malloc(s->n_raw * sizeof *y);
-        if (!y)
-            return sh_fail(s, -1, "out of memory");
-        memcpy(y, s->raw, s->n_raw * sizeof *y);
-        sh_set_series(s, y, s->n_raw);
+        sh_reset_series(s);
         s->transforms[0] = '\0';
         sh_printf(s, "working series reset to the loaded column (%zu values)\n", s->n);
         sh_json_kint(&s->j, "n", (long long)s->n);

@@ -145,16 +145,7 @@ static int cmd_simulate(sh_session *s, sh_words *w)
         sh_printf(s, "wrote %ld simulated values of %s (seed %ld, burn-in %ld) to %s\n", n, spec_text, seed, burn, file);
         sh_json_kstring(&s->j, "file", file);
     } else {
-        double *raw = malloc((size_t)n * sizeof *raw);
-        if (!raw) {
-            free(y);
-            return sh_fail(s, -1, "out of memory");
-        }
-        memcpy(raw, y, (size_t)n * sizeof *raw);
-        free(s->raw);
-        s->raw = raw;
-        s->n_raw = (size_t)n;
-        sh_set_series(s, y, (size_t)n);
+        sh_load_series(s, y, (size_t)n);
         s->loaded = 1;
         snprintf(s->path, sizeof s->path, "(simulated %s, seed %ld)", spec_text, seed);
         snprintf(s->column, sizeof s->column, "%s", column);

@@ -1,6 +1,7 @@
 /* sh_csv.c - streaming CSV reader (libcsv) for one numeric series and an optional time column. */
 #include "sh_csv.h"
 
+#include "hn_mem.h"
 #include "hn_status.h"
 #include "sh_csv_fast.h"
 #include "sh_csv_num.h"
@@ -582,7 +583,7 @@ static int read_file(reader *R, char *delim_out, int *bom_out)
     size_t cap = CHUNK;
     if (have_st && !R->names_only && S_ISREG(sb.st_mode) && sb.st_size > (off_t)CHUNK)
         cap = sb.st_size < (off_t)CHUNK_MAX ? (size_t)sb.st_size : CHUNK_MAX;
-    char *buf = malloc(cap);
+    char *buf = hn_alloc_long(cap);
     if (!buf) {
         fclose(f);
         return fail(R, HN_ENOMEM, 0, 0, "out of memory");

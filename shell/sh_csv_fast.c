@@ -2,6 +2,7 @@
  * pieces on the OpenMP threads. */
 #include "sh_csv_fast.h"
 
+#include "hn_mem.h"
 #include "sh_csv_num.h"
 #include "sh_time.h"
 
@@ -44,16 +45,16 @@ static int reserve(sh_csv_rows *r, size_t need, int with_time)
     size_t cap = r->cap ? 2 * r->cap : 4096;
     while (cap < need)
         cap *= 2;
-    double *y = realloc(r->y, cap * sizeof *y);
+    double *y = hn_realloc_long(r->y, cap * sizeof *y);
     if (!y)
         return -1;
     r->y = y;
-    long *l = realloc(r->line, cap * sizeof *l);
+    long *l = hn_realloc_long(r->line, cap * sizeof *l);
     if (!l)
         return -1;
     r->line = l;
     if (with_time) {
-        int64_t *t = realloc(r->st, cap * sizeof *t);
+        int64_t *t = hn_realloc_long(r->st, cap * sizeof *t);
         if (!t)
             return -1;
         r->st = t;

@@ -120,11 +120,40 @@ sh_model *sh_current_model_on_series(sh_session *s)
     return m;
 }
 
+/* The loaded values are copied only when a transform first replaces them:
+ * a load of a long column then touches its values once. */
 void sh_set_series(sh_session *s, double *y, size_t n)
 {
-    free(s->y);
+    if (!s->raw)
+        s->raw = s->y;
+    else
+        free(s->y);
     s->y = y;
     s->n = n;
+}
+
+void sh_load_series(sh_session *s, double *y, size_t n)
+{
+    free(s->raw);
+    free(s->y);
+    s->raw = NULL;
+    s->y = y;
+    s->n = s->n_raw = n;
+}
+
+void sh_reset_series(sh_session *s)
+{
+    if (!s->raw)
+        return;
+    free(s->y);
+    s->y = s->raw;
+    s->raw = NULL;
+    s->n = s->n_raw;
+}
+
+const double *sh_raw(const sh_session *s)
+{
+    return s->raw ? s->raw : s->y;
 }
 
 int sh_arg(const sh_words *w, int k)

@@ -37,7 +37,8 @@ typedef struct sh_session {
     char column[256];
     int season;                 /* seasonal period from the time column, 0 = unknown */
     char freq[32];              /* frequency in words, "" when there is no time column */
-    double *raw;                /* loaded values (owned) */
+    double *raw;                /* loaded values (owned), or NULL while the working
+                                   series is still they: read them with sh_raw */
     size_t n_raw;
     double *y;                  /* working series (owned) */
     size_t n;
@@ -102,7 +103,18 @@ char *sh_series_label(const sh_session *s, char *buf, size_t len);
  * otherwise NULL with an error set (the caller returns -1). */
 sh_model *sh_current_model_on_series(sh_session *s);
 
-/* Replace the working series (takes ownership of Y). */
+/* Replace the working series (takes ownership of Y).  While the working
+ * series is the loaded values, they are kept as the raw series instead of
+ * being freed. */
 void sh_set_series(sh_session *s, double *y, size_t n);
+
+/* Make Y (owned) both the loaded values and the working series. */
+void sh_load_series(sh_session *s, double *y, size_t n);
+
+/* Back to the loaded values as the working series. */
+void sh_reset_series(sh_session *s);
+
+/* The loaded values (s->n_raw of them), NULL when none are. */
+const double *sh_raw(const sh_session *s);
 
 #endif

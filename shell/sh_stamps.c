@@ -9,7 +9,7 @@
 int sh_stamps_load(const sh_session *s, sh_stamps *t)
 {
     memset(t, 0, sizeof *t);
-    if (!s->loaded || !*s->freq || s->path[0] == '(' || !s->raw)
+    if (!s->loaded || !*s->freq || s->path[0] == '(' || !sh_raw(s))
         return -1;
     static const sh_missing_policy pol[] = { SH_MISSING_REFUSE, SH_MISSING_PREVIOUS, SH_MISSING_INTERPOLATE,
                                              SH_MISSING_DROP };
@@ -24,7 +24,7 @@ int sh_stamps_load(const sh_session *s, sh_stamps *t)
             sh_data_free(&d);
             continue;
         }
-        int ok = d.has_time && d.stamp && d.n == s->n_raw && !memcmp(d.y, s->raw, d.n * sizeof *d.y);
+        int ok = d.has_time && d.stamp && d.n == s->n_raw && !memcmp(d.y, sh_raw(s), d.n * sizeof *d.y);
         if (ok) {
             t->stamp = d.stamp;
             d.stamp = NULL;
