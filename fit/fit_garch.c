@@ -307,6 +307,64 @@ static int newton_polish(garch_ctx *c, double *x, double tol, double *gn)
     return HN_OK;
 }
 
+/* Newton steps on the log-likelihood in theta itself, the natural
+ * parameters, from X: where the subsample's optimum lies near a bound (beta1
+ * close to 0, say) the logistic maps are flat there, the objective in x has
+ * a plateau with a small gradient and an indefinite Hessian, and steps in x
+ * creep; in theta the log-likelihood is concave near an interior optimum and
+ * Newton's step crosses the plateau at once.  A step is halved until theta is
+ * feasible and the objective does not rise beyond rounding; the steps stop
+ * when the gradient norm in x is below 1e-4 TOL, when the Hessian is not
+ * negative definite, or after 8 steps.  Updates X and *GN; returns the
+ * steps kept (0 also where the analytic Hessian does not apply). */
+static int theta_newton(garch_ctx *c, double *x, double tol, double *gn)
+{
+    fit_garch_work *w = &c->w;
+    const int np = w->np, io = w->i_omega;
+    if (np > FIT_GARCH_HESS_MAX)
+        return 0;
+    double th[FIT_MAX_PARAMS], tt[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], d[FIT_MAX_PARAMS];
+    double xt[FIT_MAX_PARAMS], gx[FIT_MAX_PARAMS], H[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX];
+    double f, ft, ll;
+    if (obj_x(x, &f, gx, c) != HN_OK)
+        return 0;
+    *gn = vnorm(gx, np);
+    int kept = 0;
+    for (int it = 0; it < 8 && *gn >= 1e-4 * tol; it++) {
+        if (c->interrupt && *c->interrupt)
+            break;
+        x_to_theta(c, x, th, NULL);
+        c->cached = 0;
+        if (fit_garch_hessian(w, th, &ll, g, H, NULL) != HN_OK)
+            break;
+        for (int i = 0; i < np * np; i++)      /* -H is positive definite at a maximum */
+            H[i] = -H[i];
+        memcpy(d, g, (size_t)np * sizeof *d);
+        if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', np, 1, H, np, d, 1) != 0)
+            break;
+        int ok = 0;
+        for (double lam = 1.0; lam > 1e-3 && !ok; lam *= 0.5) {
+            for (int i = 0; i < np; i++)
+                tt[i] = th[i] + lam * d[i];
+            if (!(tt[io] > 0.0 && tt[io + 1] > 0.0 && tt[io + 2] > 0.0 &&
+                  tt[io + 1] + tt[io + 2] < 1.0) ||
+                (w->has_nu && !(tt[np - 1] > 2.0 && tt[np - 1] < NU_MAX)))
+                continue;
+            theta_to_x(c, tt, xt);
+            if (obj_x(xt, &ft, gx, c) != HN_OK || !(ft <= f + 8.0 * DBL_EPSILON * fabs(f)))
+                continue;
+            ok = 1;
+        }
+        if (!ok)
+            break;
+        memcpy(x, xt, (size_t)np * sizeof *x);
+        f = ft;
+        *gn = vnorm(gx, np);
+        kept++;
+    }
+    return kept;
+}
+
 /* The gradient norm at which BFGS2 hands over to Newton steps. */
 #define BFGS_TOL 1e-4
 
@@ -773,10 +831,12 @@ static int multistart(garch_ctx *c, const fit_options *o, const double *mstart, 
 /* Long series: a fit on the first SUB_N residuals (multistart) gives a point
  * close to the optimum and, from its Hessian, a metric; quasi-Newton steps
  * from there on the whole series (metric_polish) finish in a handful of
- * passes, with BFGS2 in the preconditioned coordinates if they stall.  A
- * GARCH(1,1) fit of 10^6 values takes about 10 whole-series passes plus the
- * subsample's (measured: 106 passes over 20000 values), where a cold start
- * took hundreds. */
+ * passes.  Where they stall (the subsample's optimum near a bound, on the
+ * plateau the logistic maps make there), Newton steps in theta cross over;
+ * then BFGS2 in the preconditioned coordinates to BFGS_TOL and Newton steps
+ * in x.  A GARCH(1,1) fit of 10^6 values takes about 10 whole-series passes
+ * plus the subsample's (measured: 106 passes over 20000 values), where a
+ * cold start took hundreds. */
 #define SUB_N 20000
 #define LONG_N (4 * SUB_N)
 /* The subsample's optimum lies O(1/sqrt(SUB_N)) from the whole series' one:
@@ -838,22 +898,40 @@ static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, d
      * each gains about one digit for one pass; BFGS2 in z only when they stall. */
     memcpy(xbest, xs, (size_t)np * sizeof *xbest);
     int steps = metric_polish(c, xbest, o->grad_tol, &rep->grad_norm);
-    rep->iterations = srep.iterations + steps;
     rep->converged = rep->grad_norm < o->grad_tol;
     if (!rep->converged) {
+        steps += theta_newton(c, xbest, o->grad_tol, &rep->grad_norm);
+        rep->converged = rep->grad_norm < o->grad_tol;
+    }
+    rep->iterations = srep.iterations + steps;
+    if (!rep->converged) {
+        /* BFGS2 in z to BFGS_TOL, Newton steps from there, and BFGS2 to the
+         * full tolerance only if they fall short (as in multistart) */
         for (int i = 0; i < np; i++)
             zs[i] = 0.0;
         c->x0 = xbest;
-        int orc = fit_optim_minimise(np, zs, obj_z, c, &oo, rep);
+        fit_optim_options o1 = oo;
+        if (BFGS_TOL > o->grad_tol)
+            o1.grad_tol = BFGS_TOL / lower_norm(H, np);
+        int orc = fit_optim_minimise(np, zs, obj_z, c, &o1, rep);
         if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL) {
             rc = orc;
         } else if (orc == HN_OK || orc == HN_ENOCONV) {
             double f;
             obj_z(zs, &f, NULL, c);            /* x of the final z */
-            memcpy(xs, c->xz, (size_t)np * sizeof *xs);
-            memcpy(xbest, xs, (size_t)np * sizeof *xbest);
-            rep->iterations += srep.iterations + steps;
-            rep->iterations += metric_polish(c, xbest, o->grad_tol, &rep->grad_norm);
+            memcpy(xbest, c->xz, (size_t)np * sizeof *xbest);
+            int its = srep.iterations + steps + rep->iterations;
+            rc = newton_polish(c, xbest, o->grad_tol, &rep->grad_norm);
+            if (rc == HN_OK && rep->grad_norm >= o->grad_tol) {
+                c->L = NULL;
+                orc = bfgs_from(c, xbest, &oo, rep);
+                its += rep->iterations;
+                if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL)
+                    rc = orc;
+                else
+                    rc = newton_polish(c, xbest, o->grad_tol, &rep->grad_norm);
+            }
+            rep->iterations = its;
             rep->converged = rep->grad_norm < o->grad_tol;
         } else {                               /* the whole-series start failed */
             c->L = NULL;

@@ -493,6 +493,47 @@ static void test_recover_garch_t(void **state)
     check_recovery("garch(1,1) t", truth, 7003UL);
 }
 
+/* A long series whose first 20000 values (the subsample the long-series
+ * route fits first) are ARCH(1), beta1 = 0, and the remaining 80000
+ * GARCH(1,1) with beta1 = 0.1: the subsample's optimum lies on the plateau
+ * the logistic map of beta1 makes near 0, far in x from the whole series'
+ * interior optimum.  The fit must still converge there, in a few hundred
+ * passes (before Newton steps in theta crossed the plateau, seeds 4 and 5
+ * stopped unconverged after 2500 to 3000 passes, with a log-likelihood 1.2
+ * and 2.0 below the optimum), and the optimum must be a local maximum of
+ * the log-likelihood in every parameter. */
+static void test_subsample_on_plateau(void **state)
+{
+    (void)state;
+    fit_spec s = spec_of("garch(1,1)");
+    const size_t n1 = 20000, n = 100000;
+    const double arch[4] = { 0.0, 0.7, 0.3, 0.0 }, garch[4] = { 0.0, 0.6, 0.3, 0.1 };
+    double *y = malloc(n * sizeof *y);
+    assert_non_null(y);
+    for (unsigned long seed = 4; seed <= 5; seed++) {
+        assert_int_equal(fit_simulate(&s, arch, n1, 1000, seed, y), HN_OK);
+        assert_int_equal(fit_simulate(&s, garch, n - n1, 1000, seed + 100, y + n1), HN_OK);
+        fit_result r;
+        assert_int_equal(fit_model(y, n, &s, NULL, &r), HN_OK);
+        assert_true(r.converged);
+        assert_true(r.evaluations < 1000);
+        assert_true(r.par[3] > 0.03 && r.par[3] < 0.2);
+        fit_garch_work w;
+        assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
+        for (int i = 0; i < 4; i++)
+            for (int sg = -1; sg <= 1; sg += 2) {
+                double th[4], ll;
+                memcpy(th, r.par, sizeof th);
+                th[i] += sg * 0.05 * r.se[i];
+                assert_int_equal(fit_garch_loglik(&w, th, &ll, NULL, NULL, NULL), HN_OK);
+                assert_true(ll < r.loglik);
+            }
+        fit_garch_work_free(&w);
+        fit_result_free(&r);
+    }
+    free(y);
+}
+
 /* ---- warnings and errors ------------------------------------------------ */
 
 static void test_short_and_bad_input(void **state)
@@ -602,6 +643,7 @@ int main(void)
         cmocka_unit_test(test_recover_garch),
         cmocka_unit_test(test_recover_ar1_garch),
         cmocka_unit_test(test_recover_garch_t),
+        cmocka_unit_test(test_subsample_on_plateau),
         cmocka_unit_test(test_short_and_bad_input),
         cmocka_unit_test(test_alpha_zero_warning),
         cmocka_unit_test(test_nu_bound_warning),
