@@ -312,19 +312,25 @@ static int newton_polish(garch_ctx *c, double *x, double tol, double *gn)
  * close to 0, say) the logistic maps are flat there, the objective in x has
  * a plateau with a small gradient and an indefinite Hessian, and steps in x
  * creep; in theta the log-likelihood is concave near an interior optimum and
- * Newton's step crosses the plateau at once.  A step is halved until theta is
- * feasible and the objective does not rise beyond rounding; the steps stop
- * when the gradient norm in x is below 1e-4 TOL, when the Hessian is not
- * negative definite, or after 8 steps.  Updates X and *GN; returns the
- * steps kept (0 also where the analytic Hessian does not apply). */
+ * Newton's step crosses the plateau at once.  Bounds are met by an active
+ * set: a parameter whose full step would leave its range (omega, alpha1,
+ * beta1 > 0, 2 < nu < NU_MAX) is held where it is and the step re-solved for
+ * the others, and alpha1 and beta1 are held together where alpha1 is below
+ * 1e-3 and the Hessian is singular (beta1 is not identified as alpha1 goes
+ * to 0).  The step is then halved until theta is feasible (alpha1 + beta1 <
+ * 1) and the objective does not rise beyond rounding.  The steps stop when
+ * the gradient norm in x is below 1e-4 TOL, when no step is kept, or after
+ * 8.  Updates X and *GN; returns the steps kept (0 also where the analytic
+ * Hessian does not apply). */
 static int theta_newton(garch_ctx *c, double *x, double tol, double *gn)
 {
     fit_garch_work *w = &c->w;
-    const int np = w->np, io = w->i_omega;
+    const int np = w->np, io = w->i_omega, inu = w->has_nu ? np - 1 : -1;
     if (np > FIT_GARCH_HESS_MAX)
         return 0;
     double th[FIT_MAX_PARAMS], tt[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], d[FIT_MAX_PARAMS];
     double xt[FIT_MAX_PARAMS], gx[FIT_MAX_PARAMS], H[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX];
+    double A[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX], b[FIT_GARCH_HESS_MAX];
     double f, ft, ll;
     if (obj_x(x, &f, gx, c) != HN_OK)
         return 0;
@@ -337,10 +343,49 @@ static int theta_newton(garch_ctx *c, double *x, double tol, double *gn)
         c->cached = 0;
         if (fit_garch_hessian(w, th, &ll, g, H, NULL) != HN_OK)
             break;
-        for (int i = 0; i < np * np; i++)      /* -H is positive definite at a maximum */
-            H[i] = -H[i];
-        memcpy(d, g, (size_t)np * sizeof *d);
-        if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', np, 1, H, np, d, 1) != 0)
+        int held[FIT_GARCH_HESS_MAX] = { 0 }, solved = 0;
+        for (int round = 0; round <= np && !solved; round++) {
+            int idx[FIT_GARCH_HESS_MAX], m = 0;
+            for (int i = 0; i < np; i++)
+                if (!held[i])
+                    idx[m++] = i;
+            if (m == 0)
+                break;
+            for (int i = 0; i < m; i++) {      /* -H on the free set: positive definite at a maximum */
+                b[i] = g[idx[i]];
+                for (int j = 0; j < m; j++)
+                    A[i * m + j] = -H[idx[i] * np + idx[j]];
+            }
+            if (LAPACKE_dposv(LAPACK_ROW_MAJOR, 'L', m, 1, A, m, b, 1) != 0) {
+                if (th[io + 1] < 1e-3 && !held[io + 1]) {
+                    held[io + 1] = held[io + 2] = 1;
+                    continue;
+                }
+                break;
+            }
+            for (int i = 0; i < np; i++)
+                d[i] = 0.0;
+            for (int i = 0; i < m; i++)
+                d[idx[i]] = b[i];
+            /* the free bounded parameter whose full step goes furthest past its bound */
+            int worst = -1;
+            double over = 0.0;
+            for (int k = io; k < np; k++) {
+                if (held[k])
+                    continue;
+                double v = th[k] + d[k], lo = k == inu ? 2.0 : 0.0, hi = k == inu ? NU_MAX : INFINITY;
+                double o = v <= lo ? (lo - v) / fabs(d[k]) : v >= hi ? (v - hi) / fabs(d[k]) : 0.0;
+                if (o > over) {
+                    over = o;
+                    worst = k;
+                }
+            }
+            if (worst < 0)
+                solved = 1;
+            else
+                held[worst] = 1;
+        }
+        if (!solved)
             break;
         int ok = 0;
         for (double lam = 1.0; lam > 1e-3 && !ok; lam *= 0.5) {
@@ -348,7 +393,7 @@ static int theta_newton(garch_ctx *c, double *x, double tol, double *gn)
                 tt[i] = th[i] + lam * d[i];
             if (!(tt[io] > 0.0 && tt[io + 1] > 0.0 && tt[io + 2] > 0.0 &&
                   tt[io + 1] + tt[io + 2] < 1.0) ||
-                (w->has_nu && !(tt[np - 1] > 2.0 && tt[np - 1] < NU_MAX)))
+                (w->has_nu && !(tt[inu] > 2.0 && tt[inu] < NU_MAX)))
                 continue;
             theta_to_x(c, tt, xt);
             if (obj_x(xt, &ft, gx, c) != HN_OK || !(ft <= f + 8.0 * DBL_EPSILON * fabs(f)))
@@ -833,8 +878,7 @@ static int multistart(garch_ctx *c, const fit_options *o, const double *mstart, 
  * from there on the whole series (metric_polish) finish in a handful of
  * passes.  Where they stall (the subsample's optimum near a bound, on the
  * plateau the logistic maps make there), Newton steps in theta cross over;
- * then BFGS2 in the preconditioned coordinates to BFGS_TOL and Newton steps
- * in x.  A GARCH(1,1) fit of 10^6 values takes about 10 whole-series passes
+ * then BFGS2 in x to BFGS_TOL and Newton steps in x.  A GARCH(1,1) fit of 10^6 values takes about 10 whole-series passes
  * plus the subsample's (measured: 106 passes over 20000 values), where a
  * cold start took hundreds. */
 #define SUB_N 20000
@@ -855,7 +899,7 @@ static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, d
     int rc = fit_garch_work_init(&sub.w, w->y, w->start + SUB_N, &w->spec);
     if (rc != HN_OK)
         return rc;
-    double xs[FIT_MAX_PARAMS], zs[FIT_MAX_PARAMS];
+    double xs[FIT_MAX_PARAMS];
     double *H = malloc((size_t)np * (size_t)np * sizeof *H);
     if (!H) {
         fit_garch_work_free(&sub.w);
@@ -895,7 +939,7 @@ static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, d
     oo.grad_tol = o->grad_tol / lower_norm(H, np);   /* |g_x| <= |L|_F |g_z| */
     oo.interrupt = o->interrupt;
     /* Fixed-metric steps from the subsample optimum first: near the optimum
-     * each gains about one digit for one pass; BFGS2 in z only when they stall. */
+     * each gains about one digit for one pass; the rest only when they stall. */
     memcpy(xbest, xs, (size_t)np * sizeof *xbest);
     int steps = metric_polish(c, xbest, o->grad_tol, &rep->grad_norm);
     rep->converged = rep->grad_norm < o->grad_tol;
@@ -905,25 +949,22 @@ static int two_stage(garch_ctx *c, const fit_options *o, const double *mstart, d
     }
     rep->iterations = srep.iterations + steps;
     if (!rep->converged) {
-        /* BFGS2 in z to BFGS_TOL, Newton steps from there, and BFGS2 to the
-         * full tolerance only if they fall short (as in multistart) */
-        for (int i = 0; i < np; i++)
-            zs[i] = 0.0;
-        c->x0 = xbest;
+        /* BFGS2 in x itself to BFGS_TOL (the subsample's metric has just
+         * failed: near a bound it stretches the flat directions, and BFGS2
+         * in z crept there for thousands of passes), Newton steps from
+         * there, and BFGS2 to the full tolerance only if they fall short */
+        c->L = NULL;
         fit_optim_options o1 = oo;
-        if (BFGS_TOL > o->grad_tol)
-            o1.grad_tol = BFGS_TOL / lower_norm(H, np);
-        int orc = fit_optim_minimise(np, zs, obj_z, c, &o1, rep);
+        o1.grad_tol = BFGS_TOL > o->grad_tol ? BFGS_TOL : o->grad_tol;
+        int its = srep.iterations + steps;
+        int orc = fit_optim_minimise(np, xbest, obj_x, c, &o1, rep);
         if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL) {
             rc = orc;
         } else if (orc == HN_OK || orc == HN_ENOCONV) {
-            double f;
-            obj_z(zs, &f, NULL, c);            /* x of the final z */
-            memcpy(xbest, c->xz, (size_t)np * sizeof *xbest);
-            int its = srep.iterations + steps + rep->iterations;
+            its += rep->iterations;
             rc = newton_polish(c, xbest, o->grad_tol, &rep->grad_norm);
             if (rc == HN_OK && rep->grad_norm >= o->grad_tol) {
-                c->L = NULL;
+                oo.grad_tol = o->grad_tol;
                 orc = bfgs_from(c, xbest, &oo, rep);
                 its += rep->iterations;
                 if (orc == HN_EINTR || orc == HN_ENOMEM || orc == HN_EINVAL)
