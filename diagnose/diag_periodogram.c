@@ -113,11 +113,19 @@ static size_t smooth_length(size_t m)
     }
 }
 
+/* Odd n whose largest prime factor exceeds this take the chirp-z route
+ * (measured at n near 10^6 and 10^5: FFTW's real transform is faster up to
+ * factors of about 10^4, such as 999997 = 757 x 1321 and 1000001 = 101 x
+ * 9901, and 2 to 8 times slower for 999995 = 5 x 199999 and the prime
+ * 99991, planning included).  Even n keep the half-length route: a prime
+ * half-length costs FFTW less than the chirp's three transforms. */
+#define CHIRP_PRIME 16384
+
 int diag_periodogram_route(size_t n)
 {
     if (n % 2 == 0)
         return 0;
-    return largest_prime_factor(n) <= 97 ? 1 : 2;
+    return largest_prime_factor(n) <= CHIRP_PRIME ? 1 : 2;
 }
 
 /* Even n = 2m: with z_t = d_{2t} + i d_{2t+1} and Z its length-m DFT, the
@@ -207,34 +215,54 @@ done:
     return rc;
 }
 
-/* Odd n with a large prime factor (FFTW's prime-length algorithms are
- * several times slower than a smooth length of twice the size): Bluestein's
- * identity jt = (j^2 + t^2 - (j-t)^2)/2 as a circular convolution of length
- * L >= 2n - 1, the smallest with prime factors 2, 3, 5 and 7 only; the
- * outer chirp has modulus 1 and drops out of |X_j|^2, and FFTW's unscaled
- * inverse leaves a factor L, removed at the end. */
+/* Odd n with a large prime factor (FFTW's prime-length algorithms, planning
+ * included, are several times slower there than a smooth length half as
+ * long again): Bluestein's identity jt = (j^2 + t^2 - (j-t)^2)/2 turns X_j
+ * into a convolution of a_t = d_t w_t^* with w_k = exp(i pi k^2 / n), taken
+ * circularly on the smallest length L >= n + q with prime factors 2, 3, 5
+ * and 7 only: the outputs j <= q need w_k for -(n-1) <= k <= q alone, and
+ * those fit without wrapping onto each other.  The outer chirp has modulus 1
+ * and drops out of |X_j|^2; FFTW's unscaled inverse leaves a factor L,
+ * removed at the end.  w_t is exp(i pi r / n) with r = t^2 mod 2n exact in
+ * integers, formed as the product of a coarse and a fine table (r = a B + b,
+ * B about sqrt(2n)), each entry correctly rounded to within an ulp. */
 static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
 {
-    size_t L = smooth_length(2 * n - 1);
+    size_t L = smooth_length(n + q);
+    const unsigned long long two_n = 2ULL * (unsigned long long)n;
+    const size_t B = (size_t)sqrt((double)two_n) + 1, A = (size_t)(two_n / B) + 1;
     fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
+    double *tab = malloc(2 * (A + B) * sizeof *tab);
     kept_plan *fwd = NULL, *inv = NULL;
     int rc = HN_OK;
-    if (!a || !b) {
+    if (!a || !b || !tab) {
         rc = HN_ENOMEM;
         goto done;
     }
+    double *coarse = tab, *fine = tab + 2 * A;
+    for (size_t k = 0; k < A; k++) {
+        double th = M_PI * (double)(k * B) / (double)n;
+        coarse[2 * k] = cos(th);
+        coarse[2 * k + 1] = sin(th);
+    }
+    for (size_t k = 0; k < B; k++) {
+        double th = M_PI * (double)k / (double)n;
+        fine[2 * k] = cos(th);
+        fine[2 * k + 1] = sin(th);
+    }
     memset(a, 0, L * sizeof *a);
     memset(b, 0, L * sizeof *b);
-    unsigned long long two_n = 2ULL * (unsigned long long)n;
     for (size_t t = 0; t < n; t++) {
-        /* exp(-i pi t^2 / n), with t^2 reduced mod 2n first for accuracy */
-        unsigned long long tt = ((unsigned long long)t * (unsigned long long)t) % two_n;
-        double th = M_PI * (double)tt / (double)n;
-        double c = cos(th), sn = sin(th);
+        unsigned long long r = ((unsigned long long)t * (unsigned long long)t) % two_n;
+        size_t ka = (size_t)(r / B), kb = (size_t)(r % B);
+        double ca = coarse[2 * ka], sa = coarse[2 * ka + 1], cb = fine[2 * kb], sb = fine[2 * kb + 1];
+        double c = ca * cb - sa * sb, sn = sa * cb + ca * sb;     /* exp(i pi r / n) */
         a[t][0] = d[t] * c;
         a[t][1] = -d[t] * sn;
-        b[t][0] = c;
-        b[t][1] = sn;
+        if (t <= q) {
+            b[t][0] = c;
+            b[t][1] = sn;
+        }
         if (t > 0) {
             b[L - t][0] = c;
             b[L - t][1] = sn;
@@ -265,12 +293,19 @@ done:
     plan_release(inv);
     fftw_free(a);
     fftw_free(b);
+    free(tab);
     return rc;
 }
 
 int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *total)
 {
-    int route = diag_periodogram_route(n);
+    return diag_periodogram_by(diag_periodogram_route(n), d, n, q, I, total);
+}
+
+int diag_periodogram_by(int route, const double *d, size_t n, size_t q, double *I, double *total)
+{
+    if (route < 0 || route > 2 || (route == 0 && n % 2 != 0))
+        return HN_EINVAL;
     ord_sum sum = { 0.0, 0.0 };
     int rc = route == 0 ? periodogram_even(d, n, q, I, &sum)
            : route == 1 ? periodogram_real(d, n, q, I, &sum)

@@ -11,7 +11,7 @@
 /* |X_j|^2 for j = 1..q (q < n/2, n >= 2) into I[0..q-1]; D[0..n-1] is only
  * read.  TOTAL (NULL: not wanted): Kahan's compensated sum of I[0..q-1] in
  * that order.  Routes: even n, one complex transform of length n/2; odd n whose
- * prime factors are all at most 97, a real transform of length n; other odd
+ * prime factors are all at most 16384, a real transform of length n; other odd
  * n, Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  Returns
  * HN_OK or HN_ENOMEM; ordinates that overflow are left infinite for the
  * caller to judge. */
@@ -20,5 +20,9 @@ int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *tot
 /* Which route diag_periodogram takes for N: 0 half-length complex, 1 real,
  * 2 chirp-z. */
 int diag_periodogram_route(size_t n);
+
+/* As diag_periodogram on ROUTE, for the tests of each route: 1 and 2 take
+ * any n, 0 even n only (HN_EINVAL otherwise, and for an unknown route). */
+int diag_periodogram_by(int route, const double *d, size_t n, size_t q, double *I, double *total);
 
 #endif

@@ -295,48 +295,66 @@ static void test_detail(void **state)
 }
 
 /* Every periodogram route (diag_periodogram.h: the half-length complex
- * transform for every even n, here 1000 = 2^3 5^3, 2 x 1009, 4 x 251 and
- * 2 x 4099; the real transform for odd n with small prime factors, 1001 =
- * 7 11 13 and 2187 = 3^7; the chirp-z route for the primes 1009 and 4099)
- * against the defining sum I_j = |sum_t d_t exp(-2 pi i j t / n)|^2
- * evaluated term by term here (angles reduced mod n), on Gaussian data (GSL
- * mt19937 seed 31).  The KS distance must agree to 1e-10, and each route
- * must have been taken. */
+ * transform, even n only; the real transform; the chirp-z identity) on every
+ * length it takes, against the defining sum I_j = |sum_t d_t exp(-2 pi i j
+ * t / n)|^2 evaluated term by term here (angles reduced mod n), on Gaussian
+ * data (GSL mt19937 seed 31).  Lengths: 1000 = 2^3 5^3, 2 x 1009, 4 x 251,
+ * 2 x 4099, 1001 = 7 11 13, 2187 = 3^7, the primes 1009 and 4099, and 1500
+ * = 2^2 3 5^3, whose chirp length n + q = 2249 is not smooth.  Each ordinate
+ * must agree to 1e-10 of the mean ordinate and the total to 1e-12; the KS
+ * distance of the default route to 1e-10.  The default route follows the
+ * rule in diag_periodogram.c (largest prime factor of an odd n above 16384:
+ * chirp-z), checked on 16411 and 3 x 16411, which are prime and not. */
 static void test_periodogram_routes(void **state)
 {
     (void)state;
-    const size_t ns[8] = { 1000, 1009, 4099, 2018, 1004, 8198, 1001, 2187 };
-    int seen[3] = { 0, 0, 0 };
+    const size_t ns[9] = { 1000, 1009, 4099, 2018, 1004, 8198, 1001, 2187, 1500 };
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 31UL);
-    for (int s = 0; s < 8; s++) {
+    for (int s = 0; s < 9; s++) {
         size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
-        int route = diag_periodogram_route(n);
-        assert_true(route >= 0 && route < 3);
-        seen[route] = 1;
-        double *x = malloc(n * sizeof *x), *I = malloc(q * sizeof *I);
+        double *x = malloc(n * sizeof *x), *dev = malloc(n * sizeof *dev);
+        double *I = malloc(q * sizeof *I), *ref = malloc(q * sizeof *ref);
         assert_non_null(x);
+        assert_non_null(dev);
         assert_non_null(I);
+        assert_non_null(ref);
         double mean = 0.0;
         for (size_t t = 0; t < n; t++) {
             x[t] = gsl_ran_gaussian(r, 1.0) + (t % 7 == 0 ? 0.5 : 0.0);
             mean += x[t];
         }
         mean /= (double)n;
+        for (size_t t = 0; t < n; t++)
+            dev[t] = x[t] - mean;
         double total = 0.0;
         for (size_t j = 1; j <= q; j++) {
             double re = 0.0, im = 0.0;
             for (size_t t = 0; t < n; t++) {
                 double th = 2.0 * M_PI * (double)((j * t) % n) / (double)n;
-                re += (x[t] - mean) * cos(th);
-                im -= (x[t] - mean) * sin(th);
+                re += dev[t] * cos(th);
+                im -= dev[t] * sin(th);
             }
-            I[j - 1] = re * re + im * im;
-            total += I[j - 1];
+            ref[j - 1] = re * re + im * im;
+            total += ref[j - 1];
+        }
+        for (int route = 0; route < 3; route++) {
+            double tot = 0.0;
+            int rc = diag_periodogram_by(route, dev, n, q, I, &tot);
+            if (route == 0 && n % 2) {
+                assert_int_equal(rc, HN_EINVAL);
+                continue;
+            }
+            assert_int_equal(rc, HN_OK);
+            double worst = 0.0;
+            for (size_t j = 0; j < q; j++)
+                worst = fmax(worst, fabs(I[j] - ref[j]));
+            assert_true(worst < 1e-10 * total / (double)q);
+            TU_NEAR(tot / total, 1.0, 1e-12);
         }
         double cum = 0.0, D = 0.0;
         for (size_t j = 1; j <= M; j++) {
-            cum += I[j - 1];
+            cum += ref[j - 1];
             double c = cum / total;
             D = fmax(D, fmax((double)j / (double)M - c, c - (double)(j - 1) / (double)M));
         }
@@ -344,10 +362,19 @@ static void test_periodogram_routes(void **state)
         assert_int_equal(diag_cum_periodogram(x, n, 0.05, &t), HN_OK);
         TU_NEAR(t.statistic, D, 1e-10);
         free(x);
+        free(dev);
         free(I);
+        free(ref);
     }
     gsl_rng_free(r);
-    assert_true(seen[0] && seen[1] && seen[2]);
+    assert_int_equal(diag_periodogram_route(1000), 0);
+    assert_int_equal(diag_periodogram_route(1009), 1);
+    assert_int_equal(diag_periodogram_route(999997), 1);
+    assert_int_equal(diag_periodogram_route(16411), 2);
+    assert_int_equal(diag_periodogram_route(3 * 16411), 2);
+    const double four[4] = { 1.0, 2.0, 0.0, 1.0 };
+    double one;
+    assert_int_equal(diag_periodogram_by(3, four, 4, 1, &one, NULL), HN_EINVAL);
 }
 
 int main(void)
