@@ -11,18 +11,35 @@
 /* FFTW's planner is not thread-safe and the battery runs in parallel threads
  * (scan, batch, its own tasks): every plan is made and destroyed under one
  * lock; executing a plan needs none.  Making a plan costs about half a
- * transform (its trigonometric tables), so one plan per kind is kept for
- * the length last used and run on new arrays (fftw_alloc gives every array
- * the same alignment, as FFTW's new-array execution requires); a plan
- * still running elsewhere when its slot is taken is freed by its last user. */
+ * transform (its trigonometric tables), more for lengths with large prime
+ * factors, and it holds the lock meanwhile; so a few plans per kind are kept
+ * for the lengths last used (a scan's residual series differ in length by
+ * the AR order, and would otherwise take turns evicting one another), and
+ * run on new arrays (fftw_alloc gives every array the same alignment, as
+ * FFTW's new-array execution requires).  A kind keeps at most KEEP plans and
+ * KEEP_POINTS points in all, the least recently used going first; a plan
+ * still running elsewhere when it is evicted is freed by its last user. */
 enum { K_C2C_FWD, K_C2C_INV, K_R2C, K_KINDS };
+#define KEEP 4
+#define KEEP_POINTS (1L << 22)
 
 typedef struct kept_plan {
     fftw_plan p;
     int n, users, current;
+    unsigned long used;        /* the use counter when last taken */
 } kept_plan;
 
-static kept_plan *kept[K_KINDS];
+static kept_plan *kept[K_KINDS][KEEP];
+static unsigned long uses;
+
+static void plan_drop(kept_plan *k)
+{
+    k->current = 0;
+    if (k->users == 0) {
+        fftw_destroy_plan(k->p);
+        free(k);
+    }
+}
 
 /* A plan of KIND and length N for arrays like IN/OUT; NULL when FFTW
  * cannot make one.  Release with plan_release. */
@@ -31,10 +48,11 @@ static kept_plan *plan_get(int kind, int n, void *in, void *out)
     kept_plan *k = NULL;
 #pragma omp critical(diag_fftw_planner)
     {
-        if (kept[kind] && kept[kind]->n == n) {
-            k = kept[kind];
-            k->users++;
-        } else {
+        kept_plan **slot = kept[kind];
+        for (int i = 0; i < KEEP && !k; i++)
+            if (slot[i] && slot[i]->n == n)
+                k = slot[i];
+        if (!k) {
             fftw_plan p = kind == K_R2C
                 ? fftw_plan_dft_r2c_1d(n, in, out, FFTW_ESTIMATE)
                 : fftw_plan_dft_1d(n, in, out, kind == K_C2C_FWD ? FFTW_FORWARD : FFTW_BACKWARD,
@@ -43,19 +61,40 @@ static kept_plan *plan_get(int kind, int n, void *in, void *out)
             if (k) {
                 k->p = p;
                 k->n = n;
-                k->users = 1;
+                k->users = 0;
                 k->current = 1;
-                if (kept[kind]) {
-                    kept[kind]->current = 0;
-                    if (kept[kind]->users == 0) {
-                        fftw_destroy_plan(kept[kind]->p);
-                        free(kept[kind]);
+                /* room: an empty slot, else the least recently used; then
+                 * the oldest others while the points kept exceed the cap */
+                long points = n;
+                for (int i = 0; i < KEEP; i++)
+                    if (slot[i])
+                        points += slot[i]->n;
+                for (;;) {
+                    int old = -1, empty = -1, live = 0;
+                    for (int i = 0; i < KEEP; i++) {
+                        if (!slot[i]) {
+                            empty = i;
+                            continue;
+                        }
+                        live++;
+                        if (old < 0 || slot[i]->used < slot[old]->used)
+                            old = i;
                     }
+                    if (empty >= 0 && (points <= KEEP_POINTS || live == 0)) {
+                        slot[empty] = k;
+                        break;
+                    }
+                    points -= slot[old]->n;
+                    plan_drop(slot[old]);
+                    slot[old] = NULL;
                 }
-                kept[kind] = k;
             } else if (p) {
                 fftw_destroy_plan(p);
             }
+        }
+        if (k) {
+            k->users++;
+            k->used = ++uses;
         }
     }
     return k;
