@@ -20,6 +20,12 @@ CFLAGS    ?= $(OPT)
 ALL_CFLAGS = -std=c11 -D_DEFAULT_SOURCE $(WARN) $(CFLAGS) $(SAN) -fopenmp -Ifit -Idiagnose -Ishell \
              $(shell pkg-config --cflags $(PKGS))
 LDLIBS    := $(shell pkg-config --libs $(PKGS)) -lcsv -lm
+# The program links GCC's OpenMP runtime statically, so that the default it
+# sets for idle threads (shell/sh_main.c) is in place before the runtime
+# reads its environment; other compilers link their own runtime as usual.
+GOMP_A    := $(if $(findstring clang,$(CC)),,$(shell $(CC) -print-file-name=libgomp.a))
+PROG_OMP  := $(if $(filter /%,$(GOMP_A)),$(GOMP_A) -lpthread -ldl,-fopenmp)
+PROG_CFLAGS = $(filter-out -fopenmp,$(ALL_CFLAGS))
 TEST_LIBS := $(shell pkg-config --libs cmocka)
 VERSION   := $(shell cat VERSION 2>/dev/null || echo 0.0.0)
 
@@ -48,7 +54,7 @@ $(BUILD)/libhoneshell.a: $(SH_OBJ)
 
 hone: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
 	@echo "  LINK $@"
-	@$(CC) $(ALL_CFLAGS) -o $@ $^ $(LDLIBS)
+	@$(CC) $(PROG_CFLAGS) -o $@ $^ $(PROG_OMP) $(LDLIBS)
 
 $(BUILD)/tests/%: tests/unit/%.c tests/unit/testutil.h $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
 	@mkdir -p $(dir $@)
@@ -89,7 +95,7 @@ SAN_ENV := ASAN_OPTIONS=detect_leaks=1:abort_on_error=0:detect_stack_use_after_r
            LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp:print_suppressions=0
 
 hone-asan-check: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(TEST_BIN)
-	$(CC) $(ALL_CFLAGS) -o $(BUILD)/hone $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(LDLIBS)
+	$(CC) $(PROG_CFLAGS) -o $(BUILD)/hone $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(PROG_OMP) $(LDLIBS)
 	@$(SAN_ENV) HONE=$(CURDIR)/$(BUILD)/hone BUILD=$(BUILD) sh tests/run.sh
 
 # Memcheck on the demo sessions and tests/memcheck.hone: any error or definitely
