@@ -263,13 +263,17 @@ done:
  * those fit without wrapping onto each other.  The outer chirp has modulus 1
  * and drops out of |X_j|^2; FFTW's unscaled inverse leaves a factor L,
  * removed at the end.  w_t is exp(i pi r / n) with r = t^2 mod 2n exact in
- * integers, formed as the product of a coarse and a fine table (r = a B + b,
- * B about sqrt(2n)), each entry correctly rounded to within an ulp. */
+ * integers (stepped by odd numbers), formed as the product of a coarse and a
+ * fine table (r = a B + b, B the power of 2 at or above sqrt(2n)), each
+ * entry correctly rounded to within an ulp. */
 static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
 {
     size_t L = smooth_length(n + q);
-    const unsigned long long two_n = 2ULL * (unsigned long long)n;
-    const size_t B = (size_t)sqrt((double)two_n) + 1, A = (size_t)(two_n / B) + 1;
+    const size_t two_n = 2 * n;
+    int shift = 0;                             /* B = 2^shift >= sqrt(2n) */
+    while (((size_t)1 << shift) * ((size_t)1 << shift) < two_n)
+        shift++;
+    const size_t B = (size_t)1 << shift, A = (two_n >> shift) + 1;
     fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
     double *tab = malloc(2 * (A + B) * sizeof *tab);
     kept_plan *fwd = NULL, *inv = NULL;
@@ -289,11 +293,11 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord
         fine[2 * k] = cos(th);
         fine[2 * k + 1] = sin(th);
     }
-    memset(a, 0, L * sizeof *a);
-    memset(b, 0, L * sizeof *b);
-    for (size_t t = 0; t < n; t++) {
-        unsigned long long r = ((unsigned long long)t * (unsigned long long)t) % two_n;
-        size_t ka = (size_t)(r / B), kb = (size_t)(r % B);
+    memset(a + n, 0, (L - n) * sizeof *a);
+    memset(b + q + 1, 0, (L - n - q) * sizeof *b);
+    /* r = t^2 mod 2n, stepped exactly: (t+1)^2 = t^2 + 2t + 1, both terms below 2n */
+    for (size_t t = 0, r = 0; t < n; r += 2 * t + 1, r -= r >= two_n ? two_n : 0, t++) {
+        size_t ka = r >> shift, kb = r & (B - 1);
         double ca = coarse[2 * ka], sa = coarse[2 * ka + 1], cb = fine[2 * kb], sb = fine[2 * kb + 1];
         double c = ca * cb - sa * sb, sn = sa * cb + ca * sb;     /* exp(i pi r / n) */
         a[t][0] = d[t] * c;
