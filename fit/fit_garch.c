@@ -569,10 +569,12 @@ static int fill_result(garch_ctx *c, const double *th, fit_result *r)
     r->sigma2 = r->persistence < 1.0 ? th[io] / (1.0 - r->persistence) : INFINITY;
     r->half_life = r->persistence < 1.0 && r->persistence > 0.0
                        ? log(0.5) / log(r->persistence) : INFINITY;
-    if (r->persistence > NEAR_UNIT)
-        r->warnings |= FIT_WARN_NEAR_UNIT;
+    /* with alpha1 at its bound beta1, and so the persistence, is not
+     * identified: the one warning says so, not a persistence near 1 too */
     if (a < ALPHA_ZERO)
         r->warnings |= FIT_WARN_ALPHA_ZERO;
+    else if (r->persistence > NEAR_UNIT)
+        r->warnings |= FIT_WARN_NEAR_UNIT;
     if (N < SHORT_GARCH)
         r->warnings |= FIT_WARN_SHORT_GARCH;
     if (w->has_nu && (th[np - 1] > NU_WARN_HIGH || th[np - 1] < NU_WARN_LOW))

@@ -75,7 +75,19 @@ void sh_text_fit(sh_session *s, const sh_model *m)
     sh_printf(s, "  criteria use k = %d parameters and N = %zu; the log-likelihood includes the 2 pi constant\n",
               f->k_ic, f->n_eff);
     if (f->spec.garch) {
-        if (f->persistence < 0.999)
+        if (f->warnings & FIT_WARN_ALPHA_ZERO) {
+            /* beta1 is not identified, so neither are the persistence and what
+             * follows from it; the variance level the data support is */
+            double v = NAN;
+            if (f->sigma_t && f->n_eff > 0) {
+                v = 0.0;
+                for (size_t i = 0; i < f->n_eff; i++)
+                    v += f->sigma_t[i] * f->sigma_t[i];
+                v /= (double)f->n_eff;
+            }
+            sh_printf(s, "  persistence not identified: alpha1 is at its bound, so sigma2_t stays near its mean, %s\n",
+                      sh_num(a, sizeof a, v, 5));
+        } else if (f->persistence < 0.999)
             sh_printf(s, "  persistence alpha1 + beta1 = %s, unconditional variance %s, half-life of a shock %.3g steps\n",
                       sh_num(a, sizeof a, f->persistence, 5), sh_num(b, sizeof b, f->sigma2, 5), f->half_life);
         else
@@ -164,9 +176,12 @@ void sh_json_fit(sh_session *s, const sh_model *m)
             sh_json_knumber(j, fit_spec_param_name(&f->spec, i, name, sizeof name), f->se_robust[i],
                             "sandwich not computable");
         sh_json_end_object(j);
-        sh_json_knumber(j, "persistence", f->persistence, NULL);
-        sh_json_knumber(j, "half_life", f->persistence < 0.999 ? f->half_life : NAN,
-                        "persistence at the integrated boundary");
+        const int at_bound = (f->warnings & FIT_WARN_ALPHA_ZERO) != 0;
+        sh_json_knumber(j, "persistence", at_bound ? NAN : f->persistence,
+                        "alpha1 at its bound: beta1 not identified");
+        sh_json_knumber(j, "half_life", !at_bound && f->persistence < 0.999 ? f->half_life : NAN,
+                        at_bound ? "alpha1 at its bound: beta1 not identified"
+                                 : "persistence at the integrated boundary");
     }
     sh_json_knumber(j, "sigma2", f->spec.garch && !(f->persistence < 0.999) ? NAN : f->sigma2,
                     "unconditional variance not defined at the integrated boundary");

@@ -51,6 +51,24 @@ case_run "GARCH persistence at the boundary" "is close to 1: shocks to the varia
   "simulate garch(1,1) n=3000 seed=11 set=mu:0,omega:0.01,alpha1:0.15,beta1:0.849; fit garch(1,1); check; forecast 5"
 case_run "GARCH on white noise: singular Hessian" "the Hessian is singular at the estimate" 0 \
   "simulate arma(0,0) n=500 seed=11 set=mu:0,sigma2:1; fit garch(1,1); check; forecast 5"
+# alpha1 at its bound (simulated white noise, seed 1): beta1 and the persistence are not
+# identified, so neither is printed as a number, and no "persistence close to 1" warning.
+case_run "GARCH with alpha1 at its bound: persistence in words" \
+  "persistence not identified: alpha1 is at its bound" 0 \
+  "simulate arma(0,0) n=2000 seed=1 set=mu:0,sigma2:1; fit garch(1,1)"
+if "$HONE" -c "simulate arma(0,0) n=2000 seed=1 set=mu:0,sigma2:1; fit garch(1,1)" 2>&1 | grep -q "close to 1"; then
+  echo "FAIL alpha1 at its bound: a persistence warning beside it"; fail=1
+fi
+if [ -x "$PY" ]; then
+  "$HONE" --json -c "simulate arma(0,0) n=2000 seed=1 set=mu:0,sigma2:1; fit garch(1,1)" 2>/dev/null | tail -n 1 |
+    "$PY" -c '
+import json, sys
+d = json.loads(sys.stdin.read())
+assert d["persistence"] is None and d["half_life"] is None, d
+assert "not identified" in d["null_reasons"]["persistence"], d["null_reasons"]
+assert "alpha1 at bound" in d["warnings"] and not any("persistence" in w for w in d["warnings"]), d["warnings"]
+' || { echo "FAIL alpha1 at its bound: JSON persistence not null with its reason"; fail=1; }
+fi
 case_run "constant series" "the data are constant" 1 \
   "load tests/data/bad/constant.csv; series; fit arma(0,0)"
 case_run "blocks wider than the series" "not computed: needs at least 2 blocks" 0 \
