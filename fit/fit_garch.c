@@ -15,9 +15,15 @@
 
 /* Unconstrained parameters x seen by the optimiser (natural theta in fit_spec.h order):
  *   mean terms    x = theta / scale    (mu scaled by the sd of y, AR/MA as they are)
- *   omega         = var(y) exp(x_o)                         (> 0)
+ *   omega         = var(y) exp(x_o) (1 - P)                 (> 0)
  *   alpha1        = P q,  beta1 = P (1 - q),  P = L(x_p), q = L(x_q),
  *                   L the logistic function                 (> 0 each, alpha1 + beta1 < 1)
+ * so that x_o is the log of the variance level omega / (1 - alpha1 - beta1)
+ * against var(y): the direction the data determine best.  As alpha1 goes
+ * to 0, beta1 ceases to be identified, and with omega itself as a
+ * coordinate the likelihood's ridge is curved (omega must follow beta1 to
+ * keep the level), where quasi-Newton steps creep; in the level it is flat
+ * along x_p alone.
  *   nu            = 2 + (NU_MAX - 2) L(x_nu)                 (2 < nu < NU_MAX)
  * The mean part is not constrained: its roots are reported after the fit. */
 #define NU_MAX 300.0
@@ -57,7 +63,8 @@ static double logit(double p)
 }
 
 /* theta from x; when JAC is not NULL it receives the 2 x 2 block
- * d(alpha, beta)/d(x_p, x_q) as J[0]=da/dxp J[1]=da/dxq J[2]=db/dxp J[3]=db/dxq. */
+ * d(alpha, beta)/d(x_p, x_q) as J[0]=da/dxp J[1]=da/dxq J[2]=db/dxp J[3]=db/dxq,
+ * and J[4] = d omega / d x_p (d omega / d x_o is omega). */
 static void x_to_theta(const garch_ctx *c, const double *x, double *th, double *jac)
 {
     const fit_garch_work *w = &c->w;
@@ -66,8 +73,8 @@ static void x_to_theta(const garch_ctx *c, const double *x, double *th, double *
         th[i] = x[i];
     if (w->spec.mean)
         th[0] = x[0] * c->sy;
-    th[io] = c->vy * exp(x[io]);
     double P = logistic(x[io + 1]), q = logistic(x[io + 2]);
+    th[io] = c->vy * exp(x[io]) * logistic(-x[io + 1]);     /* 1 - P without cancellation */
     th[io + 1] = P * q;
     th[io + 2] = P * (1.0 - q);
     if (jac) {
@@ -76,6 +83,7 @@ static void x_to_theta(const garch_ctx *c, const double *x, double *th, double *
         jac[1] = P * dq;
         jac[2] = dP * (1.0 - q);
         jac[3] = -P * dq;
+        jac[4] = -th[io] * P;                                 /* d omega / d x_p */
     }
     if (w->has_nu)
         th[w->np - 1] = 2.0 + (NU_MAX - 2.0) * logistic(x[w->np - 1]);
@@ -90,8 +98,8 @@ static void theta_to_x(const garch_ctx *c, const double *th, double *x)
         x[i] = th[i];
     if (w->spec.mean)
         x[0] = th[0] / c->sy;
-    x[io] = log(th[io] / c->vy);
     double P = th[io + 1] + th[io + 2];
+    x[io] = log(th[io] / (1.0 - P) / c->vy);
     x[io + 1] = logit(P);
     x[io + 2] = logit(th[io + 1] / P);
     if (w->has_nu)
@@ -112,7 +120,7 @@ static void grad_to_x(const garch_ctx *c, const double *x, const double *th, con
     if (w->spec.mean)
         gx[0] *= c->sy;
     gx[io] = inv * g[io] * th[io];
-    gx[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2]);
+    gx[io + 1] = inv * (g[io + 1] * jac[0] + g[io + 2] * jac[2] + g[io] * jac[4]);
     gx[io + 2] = inv * (g[io + 1] * jac[1] + g[io + 2] * jac[3]);
     if (w->has_nu) {
         double L = logistic(x[np - 1]);
@@ -136,7 +144,7 @@ static int obj_x(const double *x, double *f, double *grad, void *vctx)
         return HN_OK;
     }
     c->cached = 0;
-    double jac[4], ll;
+    double jac[5], ll;
     x_to_theta(c, x, c->theta, jac);
     int rc = fit_garch_loglik(w, c->theta, &ll, c->gth, NULL, NULL);
     if (rc != HN_OK)
@@ -205,7 +213,7 @@ static int hessian_x(garch_ctx *c, const double *x, double *H)
     const int np = w->np, io = w->i_omega;
     if (np > FIT_GARCH_HESS_MAX)
         return HN_EINVAL;
-    double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], jac[4], ll;
+    double th[FIT_MAX_PARAMS], g[FIT_MAX_PARAMS], jac[5], ll;
     double Ht[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX], J[FIT_GARCH_HESS_MAX * FIT_GARCH_HESS_MAX];
     x_to_theta(c, x, th, jac);
     c->cached = 0;
@@ -218,6 +226,7 @@ static int hessian_x(garch_ctx *c, const double *x, double *H)
     if (w->spec.mean)
         J[0] = c->sy;
     J[io * np + io] = th[io];
+    J[io * np + io + 1] = jac[4];
     J[(io + 1) * np + io + 1] = jac[0];
     J[(io + 1) * np + io + 2] = jac[1];
     J[(io + 2) * np + io + 1] = jac[2];
@@ -235,14 +244,16 @@ static int hessian_x(garch_ctx *c, const double *x, double *H)
                     v += J[a * np + i] * Ht[a * np + b] * J[b * np + j];
             H[i * np + j] = v;
         }
-    /* second derivatives of the transforms: omega = vy e^x; alpha = P q,
-     * beta = P (1 - q) with P, q logistic; nu = 2 + (NU_MAX - 2) L */
+    /* second derivatives of the transforms: omega = vy e^x_o (1 - P); alpha =
+     * P q, beta = P (1 - q) with P, q logistic; nu = 2 + (NU_MAX - 2) L */
     const double P = logistic(x[io + 1]), q = logistic(x[io + 2]);
     const double P1 = P * (1.0 - P), P2 = P1 * (1.0 - 2.0 * P);
     const double q1 = q * (1.0 - q), q2 = q1 * (1.0 - 2.0 * q);
     const int ip = io + 1, iq = io + 2;
     H[io * np + io] += g[io] * th[io];
-    H[ip * np + ip] += g[ip] * P2 * q + g[iq] * P2 * (1.0 - q);
+    H[io * np + ip] -= g[io] * th[io] * P;
+    H[ip * np + io] -= g[io] * th[io] * P;
+    H[ip * np + ip] += g[ip] * P2 * q + g[iq] * P2 * (1.0 - q) - g[io] * th[io] * P * (1.0 - 2.0 * P);
     H[ip * np + iq] += g[ip] * P1 * q1 - g[iq] * P1 * q1;
     H[iq * np + ip] += g[ip] * P1 * q1 - g[iq] * P1 * q1;
     H[iq * np + iq] += g[ip] * P * q2 - g[iq] * P * q2;
@@ -706,7 +717,7 @@ static int opg_factor(garch_ctx *c, const double *x, double *L)
     fit_garch_work *w = &c->w;
     const int np = w->np, io = w->i_omega;
     double B[FIT_MAX_PARAMS * FIT_MAX_PARAMS], J[FIT_MAX_PARAMS * FIT_MAX_PARAMS];
-    double jac[4], ll;
+    double jac[5], ll;
     x_to_theta(c, x, c->theta, jac);
     c->cached = 0;
     int rc = fit_garch_loglik(w, c->theta, &ll, NULL, NULL, B);
@@ -718,6 +729,7 @@ static int opg_factor(garch_ctx *c, const double *x, double *L)
     if (w->spec.mean)
         J[0] = c->sy;
     J[io * np + io] = c->theta[io];
+    J[io * np + io + 1] = jac[4];
     J[(io + 1) * np + io + 1] = jac[0];
     J[(io + 1) * np + io + 2] = jac[1];
     J[(io + 2) * np + io + 1] = jac[2];

@@ -497,11 +497,11 @@ static void test_recover_garch_t(void **state)
  * route fits first) are ARCH(1), beta1 = 0, and the remaining 80000
  * GARCH(1,1) with beta1 = 0.1: the subsample's optimum lies on the plateau
  * the logistic map of beta1 makes near 0, far in x from the whole series'
- * interior optimum.  The fit must still converge there, in a few hundred
- * passes (before Newton steps in theta crossed the plateau, seeds 4 and 5
- * stopped unconverged after 2500 to 3000 passes, with a log-likelihood 1.2
- * and 2.0 below the optimum), and the optimum must be a local maximum of
- * the log-likelihood in every parameter. */
+ * interior optimum.  The fit must still converge there, in under 1500
+ * passes, most of them over the subsample (before Newton steps in theta
+ * crossed the plateau, seeds 4 and 5 stopped unconverged after 2500 to 3000
+ * passes, with a log-likelihood 1.2 and 2.0 below the optimum), and the
+ * optimum must be a local maximum of the log-likelihood in every parameter. */
 static void test_subsample_on_plateau(void **state)
 {
     (void)state;
@@ -516,7 +516,7 @@ static void test_subsample_on_plateau(void **state)
         fit_result r;
         assert_int_equal(fit_model(y, n, &s, NULL, &r), HN_OK);
         assert_true(r.converged);
-        assert_true(r.evaluations < 1000);
+        assert_true(r.evaluations < 1500);   /* passes, the subsample's included */
         assert_true(r.par[3] > 0.03 && r.par[3] < 0.2);
         fit_garch_work w;
         assert_int_equal(fit_garch_work_init(&w, y, n, &s), HN_OK);
