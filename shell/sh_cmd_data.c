@@ -34,7 +34,12 @@ static int cmd_load(sh_session *s, sh_words *w)
     if (rc != HN_OK)
         return sh_fail(s, -1, "%s", e.message);
 
-    /* the reader's array becomes the working series (and the loaded values) */
+    /* the reader's array becomes the working series (and the loaded
+     * values), trimmed to its length (the reader grows it by doubling;
+     * shrinking in place moves nothing) */
+    double *trim = realloc(d.y, (d.n ? d.n : 1) * sizeof *trim);
+    if (trim)
+        d.y = trim;
     sh_load_series(s, d.y, d.n);
     d.y = NULL;
     s->loaded = 1;
