@@ -117,6 +117,30 @@ hess_any(fit_garch_work *w, const double *th, hess_part *pt, double *ring, int k
             FIXED(3, 1);
     }
 #undef FIXED
+    /* the common means with MA terms: a constant with ma(1), arma(1,1),
+     * arma(2,1), ma(2) and arma(1,2) (the second derivatives of e_t follow
+     * their recursion over RING) */
+#define FIXED_MA(K, Q)                                                                 \
+    do {                                                                               \
+        if (nu)                                                                        \
+            hess_fixed(w, th, pt, ring, K, 1, Q, 1, want_opg, lo, hi, in, out, warm);  \
+        else                                                                           \
+            hess_fixed(w, th, pt, ring, K, 1, Q, 0, want_opg, lo, hi, in, out, warm);  \
+        return;                                                                        \
+    } while (0)
+    if (moff && nma == 1 && km >= 2 && km <= 4) {
+        if (km == 2)
+            FIXED_MA(2, 1);
+        if (km == 3)
+            FIXED_MA(3, 1);
+        FIXED_MA(4, 1);
+    }
+    if (moff && nma == 2 && km >= 3 && km <= 4) {
+        if (km == 3)
+            FIXED_MA(3, 2);
+        FIXED_MA(4, 2);
+    }
+#undef FIXED_MA
     if (nu)
         hess_general(w, th, pt, ring, km, moff, nma, 1, want_opg, lo, hi, in, out, warm);
     else
