@@ -330,8 +330,9 @@ static int newton_polish(garch_ctx *c, double *x, double tol, double *gn)
  * 1e-3 and the Hessian is singular (beta1 is not identified as alpha1 goes
  * to 0).  The step is then halved until theta is feasible (alpha1 + beta1 <
  * 1) and the objective does not rise beyond rounding.  The steps stop when
- * the gradient norm in x is below 1e-4 TOL, when no step is kept, or after
- * 8.  Updates X and *GN; returns the steps kept (0 also where the analytic
+ * the gradient norm in x is below 1e-4 TOL, or below TOL without having
+ * fallen a hundredfold in the last step, when no step is kept, or after 8.
+ * Updates X and *GN; returns the steps kept (0 also where the analytic
  * Hessian does not apply). */
 static int theta_newton(garch_ctx *c, double *x, double tol, double *gn)
 {
@@ -415,8 +416,13 @@ static int theta_newton(garch_ctx *c, double *x, double tol, double *gn)
             break;
         memcpy(x, xt, (size_t)np * sizeof *x);
         f = ft;
+        const double gprev = *gn;
         *gn = vnorm(gx, np);
         kept++;
+        /* below TOL and no longer gaining two digits a step (a flat
+         * direction, beta1 with alpha1 near 0): further passes buy nothing */
+        if (*gn < tol && *gn > 1e-2 * gprev)
+            break;
     }
     return kept;
 }
