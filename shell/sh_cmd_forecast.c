@@ -53,8 +53,10 @@ static int cmd_forecast(sh_session *s, sh_words *w)
     fit_spec_format(&m->fit.spec, spec, sizeof spec);
     sh_printf(s, "forecast from model %d  %s: %ld step%s after the last of %zu values, %g %% intervals\n", m->id,
               spec, h, h == 1 ? "" : "s", s->n, level);
-    sh_printf(s, "  %6s %14s %12s %14s %14s %14s\n", "step", "mean", "se", "lower", "upper",
-              m->fit.spec.garch ? "cond variance" : "");
+    sh_printf(s, "  %6s %14s %12s %14s %14s", "step", "mean", "se", "lower", "upper");
+    if (m->fit.spec.garch)
+        sh_printf(s, " %14s", "cond variance");
+    sh_printf(s, "\n");
     for (long k = 0; k < h; k++) {
         sh_printf(s, "  %6ld %14s %12s %14s %14s", k + 1, sh_num(a, sizeof a, fc->mean[k], 7),
                   sh_num(b, sizeof b, fc->se[k], 5), sh_num(c, sizeof c, fc->lo[k], 7), sh_num(d, sizeof d, fc->hi[k], 7));
