@@ -37,7 +37,9 @@ enum {
     FIT_WARN_ALPHA_ZERO    = 1u << 5,  /* alpha1 at its bound: beta1 not identified */
     FIT_WARN_SHORT_GARCH   = 1u << 6,  /* series short for a variance model */
     FIT_WARN_NU_BOUND      = 1u << 7,  /* Student-t nu at its bound */
-    FIT_WARN_NEAR_UNIT_ROOT= 1u << 8   /* an AR inverse root modulus within 0.01 of 1 */
+    FIT_WARN_NEAR_UNIT_ROOT= 1u << 8,  /* an AR inverse root modulus within 0.01 of 1 */
+    FIT_WARN_SE_MEAN_ONLY  = 1u << 9   /* alpha1 at its bound: standard errors of the mean
+                                          terms only, from their own block */
 };
 
 typedef struct {

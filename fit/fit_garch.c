@@ -486,6 +486,23 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r, const 
     }
     if (rc == HN_OK)
         rc = fit_spd_inverse(np, H, Hi);
+    /* With alpha1 at its bound the Hessian is singular along beta1 (and the
+     * variance parameters' errors have no usual asymptotics there); the mean
+     * terms, whose information is apart from the variance parameters' for a
+     * symmetric density, take theirs from their own block, the leading km x
+     * km one (common practice at a boundary; the variance parameters and nu
+     * get none). */
+    int m = np;
+    if (rc == HN_ESINGULAR && th[w->i_omega + 1] < ALPHA_ZERO && w->k_mean > 0) {
+        m = w->k_mean;
+        for (int i = 0; i < m; i++)
+            for (int j = 0; j < m; j++)
+                B[i * m + j] = H[i * np + j];
+        memcpy(H, B, (size_t)m * (size_t)m * sizeof *H);
+        rc = fit_spd_inverse(m, H, Hi);
+        if (rc == HN_OK)
+            r->warnings |= FIT_WARN_SE_MEAN_ONLY;
+    }
     if (rc == HN_OK) {
         double ll;
         if (opg)
@@ -494,29 +511,32 @@ static int standard_errors(garch_ctx *c, const double *th, fit_result *r, const 
             rc = fit_garch_loglik(w, th, &ll, NULL, NULL, B);
     }
     if (rc == HN_OK) {
-        /* B = sum_t s_t s_t' in theta, then in u (times the scales). */
-        for (int i = 0; i < np; i++)
-            for (int j = 0; j < np; j++)
-                B[i * np + j] *= c->scale[i] * c->scale[j];
+        /* B = sum_t s_t s_t' in theta, then in u (times the scales), its
+         * leading m x m block packed to stride m. */
+        for (int i = 0; i < m; i++)
+            for (int j = 0; j < m; j++)
+                B[i * m + j] = B[i * np + j] * c->scale[i] * c->scale[j];
         /* cov_u = Hi B Hi, reusing H for Hi B. */
-        for (int i = 0; i < np; i++)
-            for (int j = 0; j < np; j++) {
+        for (int i = 0; i < m; i++)
+            for (int j = 0; j < m; j++) {
                 double s = 0.0;
-                for (int k = 0; k < np; k++)
-                    s += Hi[i * np + k] * B[k * np + j];
-                H[i * np + j] = s;
+                for (int k = 0; k < m; k++)
+                    s += Hi[i * m + k] * B[k * m + j];
+                H[i * m + j] = s;
             }
         r->cov = malloc(nn * sizeof *r->cov);
         if (!r->cov)
             rc = HN_ENOMEM;
     }
     if (rc == HN_OK) {
-        for (int i = 0; i < np; i++) {
-            for (int j = 0; j < np; j++)
-                r->cov[i * np + j] = Hi[i * np + j] * c->scale[i] * c->scale[j];
+        for (size_t i = 0; i < nn; i++)
+            r->cov[i] = NAN;
+        for (int i = 0; i < m; i++) {
+            for (int j = 0; j < m; j++)
+                r->cov[i * np + j] = Hi[i * m + j] * c->scale[i] * c->scale[j];
             double rob = 0.0;
-            for (int k = 0; k < np; k++)
-                rob += H[i * np + k] * Hi[k * np + i];
+            for (int k = 0; k < m; k++)
+                rob += H[i * m + k] * Hi[k * m + i];
             r->se[i] = sqrt(r->cov[i * np + i]);
             r->se_robust[i] = rob > 0.0 ? sqrt(rob) * c->scale[i] : NAN;
         }

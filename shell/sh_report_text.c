@@ -24,6 +24,8 @@ void sh_text_warnings(sh_session *s, const fit_result *f, const char *p)
         sh_printf(s, "%swarning: the MA part is not invertible (an inverse root lies on or outside the unit circle)\n", p);
     if (wv & FIT_WARN_SINGULAR)
         sh_printf(s, "%swarning: the Hessian is singular at the estimate; standard errors are not available (parameters may not be identified)\n", p);
+    if (wv & FIT_WARN_SE_MEAN_ONLY)
+        sh_printf(s, "%snote: standard errors for the mean terms only (their own block of the Hessian); the variance parameters are at a bound and get none\n", p);
     if (wv & FIT_WARN_NEAR_UNIT)
         sh_printf(s, "%swarning: alpha1 + beta1 = %.4f is close to 1: shocks to the variance barely die out\n", p, f->persistence);
     if (wv & FIT_WARN_ALPHA_ZERO)
@@ -123,6 +125,7 @@ static void json_warnings(sh_session *s, const fit_result *f)
     static const struct { unsigned bit; const char *id; } names[] = {
         { FIT_WARN_NOCONV, "not converged" }, { FIT_WARN_NONSTATIONARY, "not stationary" },
         { FIT_WARN_NONINVERTIBLE, "not invertible" }, { FIT_WARN_SINGULAR, "singular hessian" },
+        { FIT_WARN_SE_MEAN_ONLY, "mean standard errors only" },
         { FIT_WARN_NEAR_UNIT, "variance persistence near 1" }, { FIT_WARN_ALPHA_ZERO, "alpha1 at bound" },
         { FIT_WARN_SHORT_GARCH, "short series for garch" }, { FIT_WARN_NU_BOUND, "nu at bound" },
         { FIT_WARN_NEAR_UNIT_ROOT, "near unit root" },
@@ -165,9 +168,11 @@ void sh_json_fit(sh_session *s, const sh_model *m)
     sh_json_end_object(j);
     sh_json_key(j, "se");
     sh_json_begin_object(j);
+    const char *no_se = f->warnings & FIT_WARN_SE_MEAN_ONLY
+                            ? "alpha1 at its bound: standard errors for the mean terms only"
+                            : "Hessian singular or not positive definite";
     for (int i = 0; i < f->np; i++)
-        sh_json_knumber(j, fit_spec_param_name(&f->spec, i, name, sizeof name), f->se[i],
-                        "Hessian singular or not positive definite");
+        sh_json_knumber(j, fit_spec_param_name(&f->spec, i, name, sizeof name), f->se[i], no_se);
     sh_json_end_object(j);
     if (f->spec.garch) {
         sh_json_key(j, "se_robust");

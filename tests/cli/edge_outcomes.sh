@@ -49,7 +49,7 @@ case_run "explosive path overflowing" "the path exploded" 1 \
   "simulate ar(1) n=2000 seed=1 set=mu:0,ar1:1.5,sigma2:1"
 case_run "GARCH persistence at the boundary" "is close to 1: shocks to the variance barely die out" 0 \
   "simulate garch(1,1) n=3000 seed=11 set=mu:0,omega:0.01,alpha1:0.15,beta1:0.849; fit garch(1,1); check; forecast 5"
-case_run "GARCH on white noise: singular Hessian" "the Hessian is singular at the estimate" 0 \
+case_run "GARCH on white noise: standard errors of the mean alone" "standard errors for the mean terms only" 0 \
   "simulate arma(0,0) n=500 seed=11 set=mu:0,sigma2:1; fit garch(1,1); check; forecast 5"
 # alpha1 at its bound (simulated white noise, seed 1): beta1 and the persistence are not
 # identified, so neither is printed as a number, and no "persistence close to 1" warning.

@@ -577,6 +577,26 @@ static void test_alpha_zero_warning(void **state)
     /* beta1 is not identified there: no persistence warning beside it */
     if (r.warnings & FIT_WARN_ALPHA_ZERO)
         assert_false(r.warnings & FIT_WARN_NEAR_UNIT);
+    /* and the mean's standard error comes from its own block: for i.i.d.
+     * data the familiar sd / sqrt(n) of a sample mean (common practice),
+     * within 2 %, on the Hessian and the sandwich alike; the variance
+     * parameters get none */
+    if (r.warnings & FIT_WARN_ALPHA_ZERO) {
+        double m = 0.0, v = 0.0;
+        for (size_t i = 0; i < n; i++)
+            m += y[i];
+        m /= (double)n;
+        for (size_t i = 0; i < n; i++)
+            v += (y[i] - m) * (y[i] - m);
+        const double se_mean = sqrt(v / (double)n / (double)n);
+        assert_true(fabs(r.se[0] / se_mean - 1.0) < 0.02);
+        assert_true(fabs(r.se_robust[0] / se_mean - 1.0) < 0.02);
+        if (r.warnings & FIT_WARN_SE_MEAN_ONLY) {
+            for (int i = 1; i < 4; i++)
+                assert_true(isnan(r.se[i]));
+            assert_false(r.warnings & FIT_WARN_SINGULAR);
+        }
+    }
     fit_result_free(&r);
     free(y);
 }
