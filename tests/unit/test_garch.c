@@ -582,13 +582,7 @@ static void test_alpha_zero_warning(void **state)
      * within 2 %, on the Hessian and the sandwich alike; the variance
      * parameters get none */
     if (r.warnings & FIT_WARN_ALPHA_ZERO) {
-        double m = 0.0, v = 0.0;
-        for (size_t i = 0; i < n; i++)
-            m += y[i];
-        m /= (double)n;
-        for (size_t i = 0; i < n; i++)
-            v += (y[i] - m) * (y[i] - m);
-        const double se_mean = sqrt(v / (double)n / (double)n);
+        const double se_mean = sqrt(tu_sum_sq_dev(y, n) / (double)n / (double)n);
         assert_true(fabs(r.se[0] / se_mean - 1.0) < 0.02);
         assert_true(fabs(r.se_robust[0] / se_mean - 1.0) < 0.02);
         if (r.warnings & FIT_WARN_SE_MEAN_ONLY) {

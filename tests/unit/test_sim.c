@@ -16,13 +16,7 @@ static fit_spec spec_of(const char *text)
 
 static double sample_var(const double *y, size_t n)
 {
-    double m = 0.0, s = 0.0;
-    for (size_t t = 0; t < n; t++)
-        m += y[t];
-    m /= (double)n;
-    for (size_t t = 0; t < n; t++)
-        s += (y[t] - m) * (y[t] - m);
-    return s / (double)(n - 1);
+    return tu_sum_sq_dev(y, n) / (double)(n - 1);
 }
 
 /* The recipe in fit_sim.h, replayed draw by draw with GSL directly. */

@@ -37,6 +37,19 @@ static inline const char *tu_ref_dir(void)
         skip();                                                                  \
     }
 
+/* Sum of squared deviations of Y[0..n-1] about their mean (two passes):
+ * divide by n - 1 for the sample variance, by n for the moment estimate. */
+static inline double tu_sum_sq_dev(const double *y, size_t n)
+{
+    double m = 0.0, s = 0.0;
+    for (size_t t = 0; t < n; t++)
+        m += y[t];
+    m /= (double)n;
+    for (size_t t = 0; t < n; t++)
+        s += (y[t] - m) * (y[t] - m);
+    return s;
+}
+
 /* Log relative error: -log10(|x - want| / |want|), or -log10|x| when want is 0;
  * 16 for an exact match. */
 static inline double tu_lre(double x, double want)
