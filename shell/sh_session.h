@@ -38,7 +38,7 @@ typedef struct sh_session {
     int season;                 /* seasonal period from the time column, 0 = unknown */
     char freq[32];              /* frequency in words, "" when there is no time column */
     double *raw;                /* loaded values (owned), or NULL while the working
-                                   series is still they: read them with sh_raw */
+                                   series is still those values: read them with sh_raw */
     size_t n_raw;
     double *y;                  /* working series (owned) */
     size_t n;
