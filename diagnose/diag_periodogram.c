@@ -1,5 +1,8 @@
-/* diag_periodogram.c - periodogram ordinates by FFTW: half-length complex, real or chirp-z route. */
+/* diag_periodogram.c - periodogram ordinates by FFTW: half-length complex, real or chirp-z route,
+ * the first two in one piece or split into tasks. */
 #include "diag_periodogram.h"
+#include "diag_fftplan.h"
+#include "diag_fftsplit.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -7,112 +10,6 @@
 #include <string.h>
 
 #include <fftw3.h>
-
-/* FFTW's planner is not thread-safe and the battery runs in parallel threads
- * (scan, batch, its own tasks): every plan is made and destroyed under one
- * lock; executing a plan needs none.  Making a plan costs about half a
- * transform (its trigonometric tables), more for lengths with large prime
- * factors, and it holds the lock meanwhile; so a few plans per kind are kept
- * for the lengths last used (a scan's residual series differ in length by
- * the AR order, and would otherwise take turns evicting one another), and
- * run on new arrays (fftw_alloc gives every array the same alignment, as
- * FFTW's new-array execution requires).  A kind keeps at most KEEP plans and
- * KEEP_POINTS points in all, the least recently used going first; a plan
- * still running elsewhere when it is evicted is freed by its last user. */
-enum { K_C2C_FWD, K_C2C_INV, K_R2C, K_KINDS };
-#define KEEP 4
-#define KEEP_POINTS (1L << 22)
-
-typedef struct kept_plan {
-    fftw_plan p;
-    int n, users, current;
-    unsigned long used;        /* the use counter when last taken */
-} kept_plan;
-
-static kept_plan *kept[K_KINDS][KEEP];
-static unsigned long uses;
-
-static void plan_drop(kept_plan *k)
-{
-    k->current = 0;
-    if (k->users == 0) {
-        fftw_destroy_plan(k->p);
-        free(k);
-    }
-}
-
-/* A plan of KIND and length N for arrays like IN/OUT; NULL when FFTW
- * cannot make one.  Release with plan_release. */
-static kept_plan *plan_get(int kind, int n, void *in, void *out)
-{
-    kept_plan *k = NULL;
-#pragma omp critical(diag_fftw_planner)
-    {
-        kept_plan **slot = kept[kind];
-        for (int i = 0; i < KEEP && !k; i++)
-            if (slot[i] && slot[i]->n == n)
-                k = slot[i];
-        if (!k) {
-            fftw_plan p = kind == K_R2C
-                ? fftw_plan_dft_r2c_1d(n, in, out, FFTW_ESTIMATE)
-                : fftw_plan_dft_1d(n, in, out, kind == K_C2C_FWD ? FFTW_FORWARD : FFTW_BACKWARD,
-                                   FFTW_ESTIMATE);
-            k = p ? malloc(sizeof *k) : NULL;
-            if (k) {
-                k->p = p;
-                k->n = n;
-                k->users = 0;
-                k->current = 1;
-                /* room: an empty slot, else the least recently used; then
-                 * the oldest others while the points kept exceed the cap */
-                long points = n;
-                for (int i = 0; i < KEEP; i++)
-                    if (slot[i])
-                        points += slot[i]->n;
-                for (;;) {
-                    int old = -1, empty = -1, live = 0;
-                    for (int i = 0; i < KEEP; i++) {
-                        if (!slot[i]) {
-                            empty = i;
-                            continue;
-                        }
-                        live++;
-                        if (old < 0 || slot[i]->used < slot[old]->used)
-                            old = i;
-                    }
-                    if (empty >= 0 && (points <= KEEP_POINTS || live == 0)) {
-                        slot[empty] = k;
-                        break;
-                    }
-                    points -= slot[old]->n;
-                    plan_drop(slot[old]);
-                    slot[old] = NULL;
-                }
-            } else if (p) {
-                fftw_destroy_plan(p);
-            }
-        }
-        if (k) {
-            k->users++;
-            k->used = ++uses;
-        }
-    }
-    return k;
-}
-
-static void plan_release(kept_plan *k)
-{
-    if (!k)
-        return;
-#pragma omp critical(diag_fftw_planner)
-    {
-        k->users--;
-        if (!k->current && k->users == 0) {
-            fftw_destroy_plan(k->p);
-            free(k);
-        }
-    }
-}
 
 /* Kahan's compensated sum of the ordinates in the order of j, formed as
  * they are (its chain of dependent additions then overlaps their
@@ -159,12 +56,64 @@ static size_t smooth_length(size_t m)
  * 99991, planning included).  Even n keep the half-length route: a prime
  * half-length costs FFTW less than the chirp's three transforms. */
 #define CHIRP_PRIME 16384
+/* A transform of at least SPLIT_MIN points (half-length complex for even n,
+ * real for odd n) whose length has a prime factor above SMOOTH_PRIME (FFTW
+ * has fixed-size kernels up to 16) and is not prime goes through
+ * diag_split_dft, whose pieces the battery's threads share: at n near 10^6
+ * such lengths cost FFTW 2 to 4 times as much per point as smooth ones
+ * (999998 = 2 x 31 x 127^2, 999999 = 3^3 7 11 13 37).  The rule depends on
+ * the length alone, so the digits never depend on the number of threads. */
+#define SPLIT_MIN 131072
+#define SMOOTH_PRIME 16
+
+static int splits(size_t len)
+{
+    return len >= SPLIT_MIN && largest_prime_factor(len) > SMOOTH_PRIME &&
+           diag_smallest_factor(len) < len;
+}
 
 int diag_periodogram_route(size_t n)
 {
     if (n % 2 == 0)
-        return 0;
-    return largest_prime_factor(n) <= CHIRP_PRIME ? 1 : 2;
+        return splits(n / 2) ? 3 : 0;
+    if (largest_prime_factor(n) > CHIRP_PRIME)
+        return 2;
+    return splits(n) ? 4 : 1;
+}
+
+/* A transform's entries: X_k at t[(k / s) * pitch + k % s] (one row when
+ * FFTW made it whole, r rows when diag_split_dft did), and a cursor stepped
+ * along them one entry at a time either way. */
+typedef struct {
+    const fftw_complex *t;
+    size_t s, pitch;
+} spectrum;
+
+typedef struct {
+    const fftw_complex *row;
+    size_t k1;
+} cursor;
+
+static cursor cursor_at(const spectrum *z, size_t k)
+{
+    cursor c = { z->t + (k / z->s) * z->pitch, k % z->s };
+    return c;
+}
+
+static inline void cursor_up(cursor *c, const spectrum *z)
+{
+    if (++c->k1 == z->s) {
+        c->k1 = 0;
+        c->row += z->pitch;
+    }
+}
+
+static inline void cursor_down(cursor *c, const spectrum *z)
+{
+    if (c->k1-- == 0) {
+        c->k1 = z->s - 1;
+        c->row -= z->pitch;
+    }
 }
 
 /* Even n = 2m: with z_t = d_{2t} + i d_{2t+1} and Z its length-m DFT, the
@@ -172,34 +121,47 @@ int diag_periodogram_route(size_t n)
  * O_j = (Z_j - conj Z_{m-j})/(2i), and X_j = E_j + exp(-2 pi i j/n) O_j.
  * FFTW's complex transform of length m handles any factorisation of m in
  * O(m log m), and about twice as fast as its real transform of length n
- * including the planning.  The twiddles exp(-2 pi i j/n) are formed on the
- * way as products of a coarse and a fine factor (j = a B + b, B about
- * sqrt(q)), so that about 2 sqrt(q) sines and cosines are evaluated
- * instead of 2q; each factor is correctly rounded to within an ulp, so the
- * product is good to a few ulps, below the transform's own rounding. */
-static int periodogram_even(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
+ * including the planning (SPLIT: by diag_split_dft).  The twiddles
+ * exp(-2 pi i j/n) are formed on the way as products of a coarse and a fine
+ * factor (j = a B + b, B about sqrt(q)), so that about 2 sqrt(q) sines and
+ * cosines are evaluated instead of 2q; each factor is correctly rounded to
+ * within an ulp, so the product is good to a few ulps, below the
+ * transform's own rounding. */
+static int periodogram_even(const double *d, size_t n, size_t q, int split, double *I,
+                            ord_sum *sum)
 {
     size_t m = n / 2, B = (size_t)sqrt((double)q) + 1;
-    fftw_complex *a = fftw_alloc_complex(m);
+    fftw_complex *a = NULL;
+    diag_split sp = { NULL, 0, 0, 0 };
     double *fine = malloc(2 * B * sizeof *fine);
-    kept_plan *p = NULL;
+    diag_plan *p = NULL;
+    spectrum z;
     int rc = HN_OK;
-    if (!a || !fine) {
+    if (!fine) {
         rc = HN_ENOMEM;
         goto done;
     }
-    memcpy(a, d, 2 * m * sizeof *d);   /* z_t = d_{2t} + i d_{2t+1}: the same layout */
-    p = plan_get(K_C2C_FWD, (int)m, a, a);
-    if (!p) {
-        rc = HN_ENOMEM;
-        goto done;
+    if (split) {
+        /* z_t = d_{2t} + i d_{2t+1}: the same layout */
+        if ((rc = diag_split_dft(d, 1, m, &sp)) != HN_OK)
+            goto done;
+        z = (spectrum){ sp.t, sp.s, sp.pitch };
+    } else {
+        a = fftw_alloc_complex(m);
+        if (!a || !(p = diag_plan_get(DIAG_PLAN_C2C_FWD, (int)m, a, a))) {
+            rc = HN_ENOMEM;
+            goto done;
+        }
+        memcpy(a, d, 2 * m * sizeof *d);
+        fftw_execute_dft(p->p, a, a);
+        z = (spectrum){ a, m, m };
     }
-    fftw_execute_dft(p->p, a, a);
     for (size_t b = 0; b < B; b++) {
         double th = 2.0 * M_PI * (double)b / (double)n;
         fine[2 * b] = cos(th);
         fine[2 * b + 1] = -sin(th);
     }
+    cursor up = cursor_at(&z, 1), down = cursor_at(&z, m - 1);
     for (size_t j0 = 0; j0 <= q; j0 += B) {
         double tha = 2.0 * M_PI * (double)j0 / (double)n;
         double ca = cos(tha), sa = -sin(tha);
@@ -209,48 +171,62 @@ static int periodogram_even(const double *d, size_t n, size_t q, double *I, ord_
                 continue;
             double cb = fine[2 * b], sb = fine[2 * b + 1];
             double c = ca * cb - sa * sb, sn = ca * sb + sa * cb;
-            double zr = a[j][0], zi = a[j][1];
-            double cr = a[m - j][0], ci = -a[m - j][1];               /* conj Z_{m-j} */
+            double zr = up.row[up.k1][0], zi = up.row[up.k1][1];
+            double cr = down.row[down.k1][0], ci = -down.row[down.k1][1];   /* conj Z_{m-j} */
             double er = 0.5 * (zr + cr), ei = 0.5 * (zi + ci);
             double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
             double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
             I[j - 1] = xr * xr + xi * xi;
             ord_add(sum, I[j - 1]);
+            cursor_up(&up, &z);
+            cursor_down(&down, &z);
         }
     }
 done:
-    plan_release(p);
+    diag_plan_release(p);
     fftw_free(a);
+    diag_split_free(&sp);
     free(fine);
     return rc;
 }
 
-/* Odd n with small prime factors: FFTW's real transform of length n. */
-static int periodogram_real(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
+/* Odd n with small prime factors: FFTW's real transform of length n
+ * (SPLIT: diag_split_dft's). */
+static int periodogram_real(const double *d, size_t n, size_t q, int split, double *I,
+                            ord_sum *sum)
 {
-    double *in = fftw_alloc_real(n);
-    fftw_complex *out = fftw_alloc_complex(n / 2 + 1);
-    kept_plan *p = NULL;
+    double *in = NULL;
+    fftw_complex *out = NULL;
+    diag_split sp = { NULL, 0, 0, 0 };
+    diag_plan *p = NULL;
+    spectrum z;
     int rc = HN_OK;
-    if (!in || !out) {
-        rc = HN_ENOMEM;
-        goto done;
+    if (split) {
+        if ((rc = diag_split_dft(d, 0, n, &sp)) != HN_OK)
+            goto done;
+        z = (spectrum){ sp.t, sp.s, sp.pitch };
+    } else {
+        in = fftw_alloc_real(n);
+        out = fftw_alloc_complex(n / 2 + 1);
+        if (!in || !out || !(p = diag_plan_get(DIAG_PLAN_R2C, (int)n, in, out))) {
+            rc = HN_ENOMEM;
+            goto done;
+        }
+        memcpy(in, d, n * sizeof *d);
+        fftw_execute_dft_r2c(p->p, in, out);
+        z = (spectrum){ out, n, n };
     }
-    memcpy(in, d, n * sizeof *d);
-    p = plan_get(K_R2C, (int)n, in, out);
-    if (!p) {
-        rc = HN_ENOMEM;
-        goto done;
-    }
-    fftw_execute_dft_r2c(p->p, in, out);
-    for (size_t j = 1; j <= q; j++) {
-        I[j - 1] = out[j][0] * out[j][0] + out[j][1] * out[j][1];
+    cursor c = cursor_at(&z, 1);
+    for (size_t j = 1; j <= q; j++, cursor_up(&c, &z)) {
+        const double *x = c.row[c.k1];
+        I[j - 1] = x[0] * x[0] + x[1] * x[1];
         ord_add(sum, I[j - 1]);
     }
 done:
-    plan_release(p);
+    diag_plan_release(p);
     fftw_free(in);
     fftw_free(out);
+    diag_split_free(&sp);
     return rc;
 }
 
@@ -276,7 +252,7 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord
     const size_t B = (size_t)1 << shift, A = (two_n >> shift) + 1;
     fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
     double *tab = malloc(2 * (A + B) * sizeof *tab);
-    kept_plan *fwd = NULL, *inv = NULL;
+    diag_plan *fwd = NULL, *inv = NULL;
     int rc = HN_OK;
     if (!a || !b || !tab) {
         rc = HN_ENOMEM;
@@ -311,8 +287,8 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord
             b[L - t][1] = sn;
         }
     }
-    fwd = plan_get(K_C2C_FWD, (int)L, a, a);
-    inv = plan_get(K_C2C_INV, (int)L, a, a);
+    fwd = diag_plan_get(DIAG_PLAN_C2C_FWD, (int)L, a, a);
+    inv = diag_plan_get(DIAG_PLAN_C2C_INV, (int)L, a, a);
     if (!fwd || !inv) {
         rc = HN_ENOMEM;
         goto done;
@@ -332,8 +308,8 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord
         ord_add(sum, I[j - 1]);
     }
 done:
-    plan_release(fwd);
-    plan_release(inv);
+    diag_plan_release(fwd);
+    diag_plan_release(inv);
     fftw_free(a);
     fftw_free(b);
     free(tab);
@@ -347,12 +323,12 @@ int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *tot
 
 int diag_periodogram_by(int route, const double *d, size_t n, size_t q, double *I, double *total)
 {
-    if (route < 0 || route > 2 || (route == 0 && n % 2 != 0))
+    if (route < 0 || route > 4 || ((route == 0 || route == 3) && n % 2 != 0))
         return HN_EINVAL;
     ord_sum sum = { 0.0, 0.0 };
-    int rc = route == 0 ? periodogram_even(d, n, q, I, &sum)
-           : route == 1 ? periodogram_real(d, n, q, I, &sum)
-                        : periodogram_chirp(d, n, q, I, &sum);
+    int rc = route == 0 || route == 3 ? periodogram_even(d, n, q, route == 3, I, &sum)
+           : route == 1 || route == 4 ? periodogram_real(d, n, q, route == 4, I, &sum)
+                                      : periodogram_chirp(d, n, q, I, &sum);
     if (total)
         *total = sum.total;
     return rc;

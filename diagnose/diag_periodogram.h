@@ -12,17 +12,20 @@
  * read.  TOTAL (NULL: not wanted): Kahan's compensated sum of I[0..q-1] in
  * that order.  Routes: even n, one complex transform of length n/2; odd n whose
  * prime factors are all at most 16384, a real transform of length n; other odd
- * n, Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  Returns
+ * n, Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  The first two
+ * are split into tasks (diag_fftsplit.h) when their transform has 2^17 points
+ * or more and a prime factor above 16 without being prime.  Returns
  * HN_OK or HN_ENOMEM; ordinates that overflow are left infinite for the
  * caller to judge. */
 int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *total);
 
 /* Which route diag_periodogram takes for N: 0 half-length complex, 1 real,
- * 2 chirp-z. */
+ * 2 chirp-z, 3 half-length complex split, 4 real split. */
 int diag_periodogram_route(size_t n);
 
 /* As diag_periodogram on ROUTE, for the tests of each route: 1 and 2 take
- * any n, 0 even n only (HN_EINVAL otherwise, and for an unknown route). */
+ * any n, 4 any n that is not prime, 0 even n only, 3 even n whose half is
+ * not prime (HN_EINVAL otherwise, and for an unknown route). */
 int diag_periodogram_by(int route, const double *d, size_t n, size_t q, double *I, double *total);
 
 #endif

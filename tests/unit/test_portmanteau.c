@@ -295,23 +295,38 @@ static void test_detail(void **state)
 }
 
 /* Every periodogram route (diag_periodogram.h: the half-length complex
- * transform, even n only; the real transform; the chirp-z identity) on every
- * length it takes, against the defining sum I_j = |sum_t d_t exp(-2 pi i j
- * t / n)|^2 evaluated term by term here (angles reduced mod n), on Gaussian
- * data (GSL mt19937 seed 31).  Lengths: 1000 = 2^3 5^3, 2 x 1009, 4 x 251,
- * 2 x 4099, 1001 = 7 11 13, 2187 = 3^7, the primes 1009 and 4099, and 1500
- * = 2^2 3 5^3, whose chirp length n + q = 2249 is not smooth.  Each ordinate
- * must agree to 1e-10 of the mean ordinate and the total to 1e-12; the KS
- * distance of the default route to 1e-10.  The default route follows the
- * rule in diag_periodogram.c (largest prime factor of an odd n above 16384:
- * chirp-z), checked on 16411 and 3 x 16411, which are prime and not. */
+ * transform, even n only; the real transform; the chirp-z identity; the
+ * first two split into tasks, diag_fftsplit.h) on every length it takes,
+ * against the defining sum I_j = |sum_t d_t exp(-2 pi i j t / n)|^2
+ * evaluated term by term here (angles reduced mod n), on Gaussian data (GSL
+ * mt19937 seed 31).  Lengths: 1000 = 2^3 5^3, 2 x 1009, 4 x 251, 2 x 4099,
+ * 1001 = 7 11 13, 2187 = 3^7, the primes 1009 and 4099, 1500 = 2^2 3 5^3,
+ * whose chirp length n + q = 2249 is not smooth, 2 x 31 x 37 and 3 x 17 x
+ * 19 (the split with 31 and 3 rows, the real rows of odd length; 1000
+ * gives the real split even rows, whose upper halves come from the lower
+ * by symmetry).
+ * Each ordinate must agree to 1e-10 of the mean ordinate and the total to
+ * 1e-12; the KS distance of the default route to 1e-10.  The split routes
+ * refuse a prime length, as the half-length one an odd n.  The default
+ * route follows the rule in diag_periodogram.c (largest prime factor of an
+ * odd n above 16384: chirp-z; a transform of 2^17 points or more with a
+ * prime factor above 16, not prime: split), checked on 16411 and 3 x 16411,
+ * which are prime and not, and on lengths near 10^6. */
+static int is_prime(size_t n)
+{
+    for (size_t f = 2; f * f <= n; f++)
+        if (n % f == 0)
+            return 0;
+    return n >= 2;
+}
+
 static void test_periodogram_routes(void **state)
 {
     (void)state;
-    const size_t ns[9] = { 1000, 1009, 4099, 2018, 1004, 8198, 1001, 2187, 1500 };
+    const size_t ns[11] = { 1000, 1009, 4099, 2018, 1004, 8198, 1001, 2187, 1500, 2294, 969 };
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 31UL);
-    for (int s = 0; s < 9; s++) {
+    for (int s = 0; s < 11; s++) {
         size_t n = ns[s], q = (n - 1) / 2, M = q - 1;
         double *x = malloc(n * sizeof *x), *dev = malloc(n * sizeof *dev);
         double *I = malloc(q * sizeof *I), *ref = malloc(q * sizeof *ref);
@@ -338,10 +353,13 @@ static void test_periodogram_routes(void **state)
             ref[j - 1] = re * re + im * im;
             total += ref[j - 1];
         }
-        for (int route = 0; route < 3; route++) {
+        for (int route = 0; route < 5; route++) {
             double tot = 0.0;
             int rc = diag_periodogram_by(route, dev, n, q, I, &tot);
-            if (route == 0 && n % 2) {
+            int odd_refused = (route == 0 || route == 3) && n % 2;
+            int prime_refused = (route == 3 && n % 2 == 0 && is_prime(n / 2)) ||
+                                (route == 4 && is_prime(n));
+            if (odd_refused || prime_refused) {
                 assert_int_equal(rc, HN_EINVAL);
                 continue;
             }
@@ -369,9 +387,16 @@ static void test_periodogram_routes(void **state)
     gsl_rng_free(r);
     assert_int_equal(diag_periodogram_route(1000), 0);
     assert_int_equal(diag_periodogram_route(1009), 1);
-    assert_int_equal(diag_periodogram_route(999997), 1);
+    assert_int_equal(diag_periodogram_route(999997), 4);       /* 757 x 1321 */
+    assert_int_equal(diag_periodogram_route(99997), 1);        /* below 2^17 */
     assert_int_equal(diag_periodogram_route(16411), 2);
     assert_int_equal(diag_periodogram_route(3 * 16411), 2);
+    assert_int_equal(diag_periodogram_route(1000000), 0);      /* 2^5 5^6 halves */
+    assert_int_equal(diag_periodogram_route(999998), 3);       /* half 31 x 127^2 */
+    assert_int_equal(diag_periodogram_route(999999), 4);       /* 3^3 7 11 13 37 */
+    assert_int_equal(diag_periodogram_route(2 * 65521), 0);    /* half prime */
+    assert_int_equal(diag_periodogram_route(2 * 3 * 21851), 0);/* half below 2^17 */
+    assert_int_equal(diag_periodogram_route(3 * 3 * 7 * 11 * 13 * 17 * 9), 4);
     const double four[4] = { 1.0, 2.0, 0.0, 1.0 };
     double one;
     assert_int_equal(diag_periodogram_by(3, four, 4, 1, &one, NULL), HN_EINVAL);
