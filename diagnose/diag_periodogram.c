@@ -3,6 +3,7 @@
 #include "diag_periodogram.h"
 #include "diag_fftplan.h"
 #include "diag_fftsplit.h"
+#include "diag_sum.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -10,18 +11,6 @@
 #include <string.h>
 
 #include <fftw3.h>
-
-/* Kahan's compensated sum of the ordinates in the order of j, formed as
- * they are (its chain of dependent additions then overlaps their
- * arithmetic instead of following it). */
-typedef struct { double total, comp; } ord_sum;
-
-static inline void ord_add(ord_sum *k, double v)
-{
-    double y = v - k->comp, t = k->total + y;
-    k->comp = (t - k->total) - y;
-    k->total = t;
-}
 
 /* Largest prime factor of n (n >= 2), by trial division. */
 static size_t largest_prime_factor(size_t n)
@@ -127,8 +116,7 @@ static inline void cursor_down(cursor *c, const spectrum *z)
  * cosines are evaluated instead of 2q; each factor is correctly rounded to
  * within an ulp, so the product is good to a few ulps, below the
  * transform's own rounding. */
-static int periodogram_even(const double *d, size_t n, size_t q, int split, double *I,
-                            ord_sum *sum)
+static int periodogram_even(const double *d, size_t n, size_t q, int split, double *I)
 {
     size_t m = n / 2, B = (size_t)sqrt((double)q) + 1;
     fftw_complex *a = NULL;
@@ -177,7 +165,6 @@ static int periodogram_even(const double *d, size_t n, size_t q, int split, doub
             double orr = 0.5 * (zi - ci), oi = -0.5 * (zr - cr);      /* (Z - conj)/(2i) */
             double xr = er + c * orr - sn * oi, xi = ei + c * oi + sn * orr;
             I[j - 1] = xr * xr + xi * xi;
-            ord_add(sum, I[j - 1]);
             cursor_up(&up, &z);
             cursor_down(&down, &z);
         }
@@ -192,8 +179,7 @@ done:
 
 /* Odd n with small prime factors: FFTW's real transform of length n
  * (SPLIT: diag_split_dft's). */
-static int periodogram_real(const double *d, size_t n, size_t q, int split, double *I,
-                            ord_sum *sum)
+static int periodogram_real(const double *d, size_t n, size_t q, int split, double *I)
 {
     double *in = NULL;
     fftw_complex *out = NULL;
@@ -220,7 +206,6 @@ static int periodogram_real(const double *d, size_t n, size_t q, int split, doub
     for (size_t j = 1; j <= q; j++, cursor_up(&c, &z)) {
         const double *x = c.row[c.k1];
         I[j - 1] = x[0] * x[0] + x[1] * x[1];
-        ord_add(sum, I[j - 1]);
     }
 done:
     diag_plan_release(p);
@@ -242,7 +227,7 @@ done:
  * integers (stepped by odd numbers), formed as the product of a coarse and a
  * fine table (r = a B + b, B the power of 2 at or above sqrt(2n)), each
  * entry correctly rounded to within an ulp. */
-static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord_sum *sum)
+static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
 {
     size_t L = smooth_length(n + q);
     const size_t two_n = 2 * n;
@@ -305,7 +290,6 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I, ord
     double s = 1.0 / ((double)L * (double)L);
     for (size_t j = 1; j <= q; j++) {
         I[j - 1] = (a[j][0] * a[j][0] + a[j][1] * a[j][1]) * s;
-        ord_add(sum, I[j - 1]);
     }
 done:
     diag_plan_release(fwd);
@@ -325,11 +309,13 @@ int diag_periodogram_by(int route, const double *d, size_t n, size_t q, double *
 {
     if (route < 0 || route > 4 || ((route == 0 || route == 3) && n % 2 != 0))
         return HN_EINVAL;
-    ord_sum sum = { 0.0, 0.0 };
-    int rc = route == 0 || route == 3 ? periodogram_even(d, n, q, route == 3, I, &sum)
-           : route == 1 || route == 4 ? periodogram_real(d, n, q, route == 4, I, &sum)
-                                      : periodogram_chirp(d, n, q, I, &sum);
+    int rc = route == 0 || route == 3 ? periodogram_even(d, n, q, route == 3, I)
+           : route == 1 || route == 4 ? periodogram_real(d, n, q, route == 4, I)
+                                      : periodogram_chirp(d, n, q, I);
+    /* the ordinates are positive: a blocked sum with compensation between
+     * blocks keeps the total to a few ulps, and is vector code (a sum
+     * compensated term by term is one chain of dependent additions) */
     if (total)
-        *total = sum.total;
+        *total = rc == HN_OK ? diag_sum(I, q) : 0.0;
     return rc;
 }

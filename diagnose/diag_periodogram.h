@@ -9,12 +9,12 @@
 #include <stddef.h>
 
 /* |X_j|^2 for j = 1..q (q < n/2, n >= 2) into I[0..q-1]; D[0..n-1] is only
- * read.  TOTAL (NULL: not wanted): Kahan's compensated sum of I[0..q-1] in
- * that order.  Routes: even n, one complex transform of length n/2; odd n whose
- * prime factors are all at most 16384, a real transform of length n; other odd
- * n, Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  The first two
- * are split into tasks (diag_fftsplit.h) when their transform has 2^17 points
- * or more and a prime factor above 16 without being prime.  Returns
+ * read.  TOTAL (NULL: not wanted): the sum of I[0..q-1] (diag_sum.h).
+ * Routes: even n, one complex transform of length n/2; odd n whose prime
+ * factors are all at most 16384, a real transform of length n; other odd n,
+ * Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  The first two
+ * are split into tasks (diag_fftsplit.h) when their transform has 2^17
+ * points or more and a prime factor above 16 without being prime.  Returns
  * HN_OK or HN_ENOMEM; ordinates that overflow are left infinite for the
  * caller to judge. */
 int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *total);
