@@ -17,7 +17,7 @@ PKGS      := gsl lapacke fftw3 readline libcrypto cairo
 WARN      := -Wall -Wextra -Werror -Wshadow -Wpointer-arith -Wstrict-prototypes \
              -Wmissing-prototypes -Wformat=2 -Wvla -Wundef
 CFLAGS    ?= $(OPT)
-ALL_CFLAGS = -std=c11 -D_DEFAULT_SOURCE $(WARN) $(CFLAGS) $(SAN) -fopenmp -Ifit -Idiagnose -Ishell \
+ALL_CFLAGS = -std=c11 -D_DEFAULT_SOURCE -ffp-contract=off $(WARN) $(CFLAGS) $(SAN) -fopenmp -Ifit -Idiagnose -Ishell \
              $(shell pkg-config --cflags $(PKGS))
 LDLIBS    := $(shell pkg-config --libs $(PKGS)) -lcsv -lm
 # The program links GCC's OpenMP runtime statically, so that the default it

@@ -1,5 +1,6 @@
 /* fit_garch_hess.c - analytic Hessian of the AR-GARCH(1,1) conditional log-likelihood. */
 #include "fit_garch_lik.h"
+#include "hn_clones.h"
 #include "hn_status.h"
 
 #include <float.h>
@@ -93,7 +94,7 @@ typedef struct {
 /* One stretch (see the body) with the counts fixed at compile time where
  * they are common, chosen from their run-time values; not inlined, so that
  * a parallel region calling it runs the fixed copies. */
-static __attribute__((noinline)) void
+static HN_HOT_CLONES __attribute__((noinline)) void
 hess_any(fit_garch_work *w, const double *th, hess_part *pt, double *ring, int km, int moff,
          int nma, int nu, int want_opg, size_t lo, size_t hi, const hess_state *in,
          hess_state *out, int warm)

@@ -1,5 +1,6 @@
 /* fit_garch_lik.c - ARMA-GARCH(1,1) conditional log-likelihood with its analytic gradient. */
 #include "fit_garch_lik.h"
+#include "hn_clones.h"
 #include "hn_mem.h"
 #include "hn_status.h"
 
@@ -518,7 +519,7 @@ lik_range(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, 
  * their run-time values: called from inside the parallel region, where a
  * copy inlined into loglik_body would see them as variables only (OpenMP
  * outlines the region before inlining). */
-static __attribute__((noinline)) void
+static HN_HOT_CLONES __attribute__((noinline)) void
 range_any(const lik_ctx *cx, size_t lo, size_t hi, lik_state *st, lik_part *pt, int km,
           int nu, int ar, int mode, int fm, int fa)
 {
