@@ -7,11 +7,12 @@
  * more for lengths with large prime factors, and it holds the lock
  * meanwhile; so a few plans per kind are kept for the lengths last used (a
  * scan's residual series differ in length by the AR order, and would
- * otherwise take turns evicting one another).  A kind keeps at most KEEP
+ * otherwise take turns evicting one another; the periodogram's chirp
+ * lengths stay among them in a batch over many lengths).  A kind keeps at most KEEP
  * plans and KEEP_POINTS points in all, the least recently used going
  * first; a plan still running elsewhere when it is evicted is freed by its
  * last user. */
-#define KEEP 4
+#define KEEP 8
 #define KEEP_POINTS (1L << 22)
 
 static diag_plan *kept[DIAG_PLAN_KINDS][KEEP];

@@ -38,6 +38,17 @@ static size_t smooth_length(size_t m)
     }
 }
 
+/* Smallest L >= m of the form 2^k or 3 x 2^k: the chirp's lengths below
+ * LADDER_MAX, few enough that every series length in a range shares the
+ * plans of one or two of them. */
+static size_t ladder_length(size_t m)
+{
+    size_t p = 1;
+    while (p < m)
+        p <<= 1;
+    return 3 * (p / 4) >= m ? 3 * (p / 4) : p;
+}
+
 /* Odd n whose largest prime factor exceeds this take the chirp-z route
  * (measured at n near 10^6 and 10^5: FFTW's real transform is faster up to
  * factors of about 10^4, such as 999997 = 757 x 1321 and 1000001 = 101 x
@@ -55,6 +66,16 @@ static size_t smooth_length(size_t m)
 #define SPLIT_MIN 131072
 #define SMOOTH_PRIME 16
 
+/* Below LADDER_MAX, an n whose transform (half-length complex for even n,
+ * real for odd n) has a prime factor above SMOOTH_PRIME takes the chirp on
+ * a ladder length.  FFTW plans each length anew, and for such lengths the
+ * plan costs far more than the transform: at n near 2 x 10^4, 0.6 to 57 ms
+ * (a prime length) against 0.2 to 2.8 ms for the transform, under the
+ * planner's lock, which a batch over series of many lengths then waits on;
+ * the chirp's three transforms on 2^15 points take about 0.6 ms there, and
+ * their plans serve every length up to the next rung. */
+#define LADDER_MAX 32768
+
 static int splits(size_t len)
 {
     return len >= SPLIT_MIN && largest_prime_factor(len) > SMOOTH_PRIME &&
@@ -63,6 +84,9 @@ static int splits(size_t len)
 
 int diag_periodogram_route(size_t n)
 {
+    size_t len = n % 2 == 0 ? n / 2 : n;
+    if (n < LADDER_MAX && len > 1 && largest_prime_factor(len) > SMOOTH_PRIME)
+        return 5;
     if (n % 2 == 0)
         return splits(n / 2) ? 3 : 0;
     if (largest_prime_factor(n) > CHIRP_PRIME)
@@ -220,26 +244,108 @@ done:
  * long again): Bluestein's identity jt = (j^2 + t^2 - (j-t)^2)/2 turns X_j
  * into a convolution of a_t = d_t w_t^* with w_k = exp(i pi k^2 / n), taken
  * circularly on the smallest length L >= n + q with prime factors 2, 3, 5
- * and 7 only: the outputs j <= q need w_k for -(n-1) <= k <= q alone, and
+ * and 7 only (LADDER: of the form 2^k or 3 x 2^k, for the plans' sake): the
+ * outputs j <= q need w_k for -(n-1) <= k <= q alone, and
  * those fit without wrapping onto each other.  The outer chirp has modulus 1
  * and drops out of |X_j|^2; FFTW's unscaled inverse leaves a factor L,
  * removed at the end.  w_t is exp(i pi r / n) with r = t^2 mod 2n exact in
  * integers (stepped by odd numbers), formed as the product of a coarse and a
  * fine table (r = a B + b, B the power of 2 at or above sqrt(2n)), each
  * entry correctly rounded to within an ulp. */
-static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
+/* The chirp's filter, the transform of b, kept for the ladder lengths last
+ * used (n, q, L): a check repeated on series of one length then takes two
+ * transforms instead of three.  An entry is never changed once kept, and
+ * one evicted while in use is freed by its last user. */
+#define KEEP_FILTERS 4
+
+typedef struct {
+    size_t n, q, L;
+    fftw_complex *B;
+    int users, current;
+    unsigned long used;
+} chirp_filter;
+
+static chirp_filter *filters[KEEP_FILTERS];
+static unsigned long filter_uses;
+
+static void filter_free(chirp_filter *f)
 {
-    size_t L = smooth_length(n + q);
+    fftw_free(f->B);
+    free(f);
+}
+
+/* The kept filter for (n, q, L), taken for the caller; NULL when none. */
+static chirp_filter *filter_take(size_t n, size_t q, size_t L)
+{
+    chirp_filter *f = NULL;
+#pragma omp critical(diag_chirp_filters)
+    for (int i = 0; i < KEEP_FILTERS && !f; i++)
+        if (filters[i] && filters[i]->n == n && filters[i]->q == q && filters[i]->L == L) {
+            f = filters[i];
+            f->users++;
+            f->used = ++filter_uses;
+        }
+    return f;
+}
+
+static void filter_release(chirp_filter *f)
+{
+    if (!f)
+        return;
+#pragma omp critical(diag_chirp_filters)
+    {
+        f->users--;
+        if (!f->current && f->users == 0)
+            filter_free(f);
+    }
+}
+
+/* Keep B, the filter for (n, q, L), in place of the least recently used;
+ * the entry comes back taken for the caller and owns B from then on.
+ * NULL when out of memory (B stays the caller's). */
+static chirp_filter *filter_keep(size_t n, size_t q, size_t L, fftw_complex *B)
+{
+    chirp_filter *f = malloc(sizeof *f);
+    if (!f)
+        return NULL;
+    *f = (chirp_filter){ n, q, L, B, 1, 1, 0 };
+#pragma omp critical(diag_chirp_filters)
+    {
+        int slot = -1;
+        for (int i = 0; i < KEEP_FILTERS; i++) {
+            if (!filters[i]) {
+                slot = i;
+                break;
+            }
+            if (slot < 0 || filters[i]->used < filters[slot]->used)
+                slot = i;
+        }
+        chirp_filter *old = filters[slot];
+        if (old) {
+            old->current = 0;
+            if (old->users == 0)
+                filter_free(old);
+        }
+        f->used = ++filter_uses;
+        filters[slot] = f;
+    }
+    return f;
+}
+
+static int periodogram_chirp(const double *d, size_t n, size_t q, int ladder, double *I)
+{
+    size_t L = ladder ? ladder_length(n + q) : smooth_length(n + q);
     const size_t two_n = 2 * n;
     int shift = 0;                             /* B = 2^shift >= sqrt(2n) */
     while (((size_t)1 << shift) * ((size_t)1 << shift) < two_n)
         shift++;
     const size_t B = (size_t)1 << shift, A = (two_n >> shift) + 1;
-    fftw_complex *a = fftw_alloc_complex(L), *b = fftw_alloc_complex(L);
+    chirp_filter *kept_b = ladder ? filter_take(n, q, L) : NULL;
+    fftw_complex *a = fftw_alloc_complex(L), *b = kept_b ? NULL : fftw_alloc_complex(L);
     double *tab = malloc(2 * (A + B) * sizeof *tab);
     diag_plan *fwd = NULL, *inv = NULL;
     int rc = HN_OK;
-    if (!a || !b || !tab) {
+    if (!a || (!kept_b && !b) || !tab) {
         rc = HN_ENOMEM;
         goto done;
     }
@@ -255,7 +361,8 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
         fine[2 * k + 1] = sin(th);
     }
     memset(a + n, 0, (L - n) * sizeof *a);
-    memset(b + q + 1, 0, (L - n - q) * sizeof *b);
+    if (b)
+        memset(b + q + 1, 0, (L - n - q) * sizeof *b);
     /* r = t^2 mod 2n, stepped exactly: (t+1)^2 = t^2 + 2t + 1, both terms below 2n */
     for (size_t t = 0, r = 0; t < n; r += 2 * t + 1, r -= r >= two_n ? two_n : 0, t++) {
         size_t ka = r >> shift, kb = r & (B - 1);
@@ -263,6 +370,8 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
         double c = ca * cb - sa * sb, sn = sa * cb + ca * sb;     /* exp(i pi r / n) */
         a[t][0] = d[t] * c;
         a[t][1] = -d[t] * sn;
+        if (!b)
+            continue;
         if (t <= q) {
             b[t][0] = c;
             b[t][1] = sn;
@@ -279,10 +388,15 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
         goto done;
     }
     fftw_execute_dft(fwd->p, a, a);
-    fftw_execute_dft(fwd->p, b, b);
+    if (b) {
+        fftw_execute_dft(fwd->p, b, b);
+        if (ladder && (kept_b = filter_keep(n, q, L, b)) != NULL)
+            b = NULL;                  /* the kept entry owns it now */
+    }
+    const fftw_complex *bt = kept_b ? kept_b->B : b;
     for (size_t k = 0; k < L; k++) {
-        double re = a[k][0] * b[k][0] - a[k][1] * b[k][1];
-        double im = a[k][0] * b[k][1] + a[k][1] * b[k][0];
+        double re = a[k][0] * bt[k][0] - a[k][1] * bt[k][1];
+        double im = a[k][0] * bt[k][1] + a[k][1] * bt[k][0];
         a[k][0] = re;
         a[k][1] = im;
     }
@@ -294,6 +408,7 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, double *I)
 done:
     diag_plan_release(fwd);
     diag_plan_release(inv);
+    filter_release(kept_b);
     fftw_free(a);
     fftw_free(b);
     free(tab);
@@ -307,11 +422,11 @@ int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *tot
 
 int diag_periodogram_by(int route, const double *d, size_t n, size_t q, double *I, double *total)
 {
-    if (route < 0 || route > 4 || ((route == 0 || route == 3) && n % 2 != 0))
+    if (route < 0 || route > 5 || ((route == 0 || route == 3) && n % 2 != 0))
         return HN_EINVAL;
     int rc = route == 0 || route == 3 ? periodogram_even(d, n, q, route == 3, I)
            : route == 1 || route == 4 ? periodogram_real(d, n, q, route == 4, I)
-                                      : periodogram_chirp(d, n, q, I);
+                                      : periodogram_chirp(d, n, q, route == 5, I);
     /* the ordinates are positive: a blocked sum with compensation between
      * blocks keeps the total to a few ulps, and is vector code (a sum
      * compensated term by term is one chain of dependent additions) */

@@ -250,9 +250,17 @@ def bench(tmp):
     files = [file_of(s, n) for s in ("arma21", "garch", "ar1garch")] * 2
     # the two thread counts alternate, so that a neighbour's load falls on both alike
     many = [file_of(s, 10**4) for s in ("arma21", "garch", "ar1garch")] * 66
+    # series of many lengths (each a new FFT length): hone's simulate, seeds 500..539
+    varied = []
+    for k in range(40):
+        out = os.path.join(tmp, "varied_%d.csv" % k)
+        run([HONE, "-c", "simulate arma(1,1) n=%d seed=%d set=mu:0,ar1:0.5,ma1:0.3,sigma2:1 file=%s"
+             % (20000 + 137 * k, 500 + k, out)])
+        varied.append(out)
     tb = {1: [], 2: []}
     ts = {1: [], 2: []}
     tm = {1: [], 2: []}
+    tv = {1: [], 2: []}
     for _ in range(7):
         for th in (1, 2):
             env = dict(os.environ, OMP_NUM_THREADS=str(th))
@@ -265,14 +273,21 @@ def bench(tmp):
                            check=True, capture_output=True, env=env)
             tm[th].append(time.perf_counter() - t0)
             t0 = time.perf_counter()
+            subprocess.run([HONE, "batch", "--threads", str(th), "--commands", "fit arma(1,1); check"] + varied,
+                           check=True, capture_output=True, env=env)
+            tv[th].append(time.perf_counter() - t0)
+            t0 = time.perf_counter()
             subprocess.run([HONE, "-c", "load %s; scan p=0..2 q=0..2" % file_of("arma21", n)],
                            check=True, capture_output=True, env=env)
             ts[th].append(time.perf_counter() - t0)
-    sc = {th: (med(tb[th]), med(ts[th]), med(tm[th])) for th in (1, 2)}
+    sc = {th: (med(tb[th]), med(ts[th]), med(tm[th]), med(tv[th])) for th in (1, 2)}
     res["scaling"] = {"batch_1_s": sc[1][0], "batch_2_s": sc[2][0], "batch_speedup": sc[1][0] / sc[2][0],
                       "batch_many_1_s": sc[1][2], "batch_many_2_s": sc[2][2],
                       "batch_many_speedup": sc[1][2] / sc[2][2],
                       "batch_many_work": "198 series of n = 10^4 (arma21, garch, ar1garch, 66 times): fit arma(1,1); check",
+                      "batch_varied_1_s": sc[1][3], "batch_varied_2_s": sc[2][3],
+                      "batch_varied_speedup": sc[1][3] / sc[2][3],
+                      "batch_varied_work": "40 series of n = 20000 + 137k, k = 0..39 (arma(1,1), seeds 500 + k): fit arma(1,1); check",
                       "scan_1_s": sc[1][1], "scan_2_s": sc[2][1], "scan_speedup": sc[1][1] / sc[2][1],
                       "batch_work": "6 series of n = 10^5 (arma21, garch, ar1garch, twice): fit arma(1,1); check",
                       "scan_work": "scan p=0..2 q=0..2 on arma21, n = 10^5"}
@@ -342,6 +357,8 @@ def report(r):
              % (c["batch_work"], c["batch_1_s"], c["batch_2_s"], c["batch_speedup"]))
     L.append("         batch (%s) 1 thread %.3g s, 2 threads %.3g s: %.2fx"
              % (c["batch_many_work"], c["batch_many_1_s"], c["batch_many_2_s"], c["batch_many_speedup"]))
+    L.append("         batch (%s) 1 thread %.3g s, 2 threads %.3g s: %.2fx"
+             % (c["batch_varied_work"], c["batch_varied_1_s"], c["batch_varied_2_s"], c["batch_varied_speedup"]))
     L.append("         scan (%s) 1 thread %.3g s, 2 threads %.3g s: %.2fx"
              % (c["scan_work"], c["scan_1_s"], c["scan_2_s"], c["scan_speedup"]))
     L.append("")

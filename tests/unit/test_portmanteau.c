@@ -296,7 +296,9 @@ static void test_detail(void **state)
 
 /* Every periodogram route (diag_periodogram.h: the half-length complex
  * transform, even n only; the real transform; the chirp-z identity; the
- * first two split into tasks, diag_fftsplit.h) on every length it takes,
+ * first two split into tasks, diag_fftsplit.h; the chirp on a length 2^k or
+ * 3 x 2^k, whose second call on a length reuses its filter and must give
+ * the same bits) on every length it takes,
  * against the defining sum I_j = |sum_t d_t exp(-2 pi i j t / n)|^2
  * evaluated term by term here (angles reduced mod n), on Gaussian data (GSL
  * mt19937 seed 31).  Lengths: 1000 = 2^3 5^3, 2 x 1009, 4 x 251, 2 x 4099,
@@ -308,10 +310,12 @@ static void test_detail(void **state)
  * Each ordinate must agree to 1e-10 of the mean ordinate and the total to
  * 1e-12; the KS distance of the default route to 1e-10.  The split routes
  * refuse a prime length, as the half-length one an odd n.  The default
- * route follows the rule in diag_periodogram.c (largest prime factor of an
- * odd n above 16384: chirp-z; a transform of 2^17 points or more with a
- * prime factor above 16, not prime: split), checked on 16411 and 3 x 16411,
- * which are prime and not, and on lengths near 10^6. */
+ * route follows the rule in diag_periodogram.c (below n = 32768, a
+ * transform with a prime factor above 16: chirp-z on a length 2^k or 3 x
+ * 2^k; above, largest prime factor of an odd n above 16384: chirp-z; a
+ * transform of 2^17 points or more with a prime factor above 16, not prime:
+ * split), checked on both sides of 32768, on 16411 and 3 x 16411, which are
+ * prime and not, and on lengths near 10^6. */
 static int is_prime(size_t n)
 {
     for (size_t f = 2; f * f <= n; f++)
@@ -353,7 +357,7 @@ static void test_periodogram_routes(void **state)
             ref[j - 1] = re * re + im * im;
             total += ref[j - 1];
         }
-        for (int route = 0; route < 5; route++) {
+        for (int route = 0; route < 6; route++) {
             double tot = 0.0;
             int rc = diag_periodogram_by(route, dev, n, q, I, &tot);
             int odd_refused = (route == 0 || route == 3) && n % 2;
@@ -369,6 +373,15 @@ static void test_periodogram_routes(void **state)
                 worst = fmax(worst, fabs(I[j] - ref[j]));
             assert_true(worst < 1e-10 * total / (double)q);
             TU_NEAR(tot / total, 1.0, 1e-12);
+            if (route == 5) {
+                /* again, from the kept filter: the same bits */
+                double *again = malloc(q * sizeof *again), tot2 = 0.0;
+                assert_non_null(again);
+                assert_int_equal(diag_periodogram_by(5, dev, n, q, again, &tot2), HN_OK);
+                assert_memory_equal(again, I, q * sizeof *I);
+                assert_memory_equal(&tot2, &tot, sizeof tot);
+                free(again);
+            }
         }
         double cum = 0.0, D = 0.0;
         for (size_t j = 1; j <= M; j++) {
@@ -386,10 +399,16 @@ static void test_periodogram_routes(void **state)
     }
     gsl_rng_free(r);
     assert_int_equal(diag_periodogram_route(1000), 0);
-    assert_int_equal(diag_periodogram_route(1009), 1);
+    assert_int_equal(diag_periodogram_route(1009), 5);         /* prime, below 32768 */
+    assert_int_equal(diag_periodogram_route(2018), 5);         /* half prime */
+    assert_int_equal(diag_periodogram_route(1001), 1);         /* 7 11 13 */
+    assert_int_equal(diag_periodogram_route(2187), 1);
+    assert_int_equal(diag_periodogram_route(32766), 5);        /* half 3 43 127, below 32768 */
+    assert_int_equal(diag_periodogram_route(32770), 0);        /* half 5 29 113, from 32768 on */
+    assert_int_equal(diag_periodogram_route(32769), 1);        /* 3^2 11 331 */
     assert_int_equal(diag_periodogram_route(999997), 4);       /* 757 x 1321 */
     assert_int_equal(diag_periodogram_route(99997), 1);        /* below 2^17 */
-    assert_int_equal(diag_periodogram_route(16411), 2);
+    assert_int_equal(diag_periodogram_route(16411), 5);
     assert_int_equal(diag_periodogram_route(3 * 16411), 2);
     assert_int_equal(diag_periodogram_route(1000000), 0);      /* 2^5 5^6 halves */
     assert_int_equal(diag_periodogram_route(999998), 3);       /* half 31 x 127^2 */
