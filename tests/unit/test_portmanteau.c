@@ -421,6 +421,46 @@ static void test_periodogram_routes(void **state)
     assert_int_equal(diag_periodogram_by(3, four, 4, 1, &one, NULL), HN_EINVAL);
 }
 
+/* The split routes on lengths whose rows are long enough to be gathered in
+ * several pieces (s > 8192), against FFTW's transform of the whole length in
+ * one piece (routes 0 and 1): 262146 = 2 x 3 x 43691 (half-length 3 rows of
+ * 43691) and 393219 = 3^2 x 43691 (3 real rows of 131073), Gaussian data
+ * (GSL mt19937 seed 37).  Ordinates to 1e-10 of the mean ordinate, totals
+ * to 1e-12. */
+static void test_periodogram_split_long(void **state)
+{
+    (void)state;
+    const size_t ns[2] = { 262146, 393219 };
+    const int split[2] = { 3, 4 }, whole[2] = { 0, 1 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 37UL);
+    for (int k = 0; k < 2; k++) {
+        size_t n = ns[k], q = (n - 1) / 2;
+        double *d = malloc(n * sizeof *d), *a = malloc(q * sizeof *a), *b = malloc(q * sizeof *b);
+        assert_non_null(d);
+        assert_non_null(a);
+        assert_non_null(b);
+        double mean = 0.0;
+        for (size_t t = 0; t < n; t++)
+            mean += d[t] = gsl_ran_gaussian(r, 1.0);
+        mean /= (double)n;
+        for (size_t t = 0; t < n; t++)
+            d[t] -= mean;
+        double ta = 0.0, tb = 0.0;
+        assert_int_equal(diag_periodogram_by(whole[k], d, n, q, a, &ta), HN_OK);
+        assert_int_equal(diag_periodogram_by(split[k], d, n, q, b, &tb), HN_OK);
+        double worst = 0.0;
+        for (size_t j = 0; j < q; j++)
+            worst = fmax(worst, fabs(a[j] - b[j]));
+        assert_true(worst < 1e-10 * ta / (double)q);
+        TU_NEAR(tb / ta, 1.0, 1e-12);
+        free(d);
+        free(a);
+        free(b);
+    }
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -432,6 +472,7 @@ int main(void)
         cmocka_unit_test(test_refusals),
         cmocka_unit_test(test_detail),
         cmocka_unit_test(test_periodogram_routes),
+        cmocka_unit_test(test_periodogram_split_long),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
