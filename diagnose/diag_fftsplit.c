@@ -8,8 +8,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* Samples gathered per task in step 1, and step 3's transforms per task at
- * most (a multiple of 4, see below). */
+/* Samples gathered per task in step 1; tasks in step 3 (its columns are
+ * dealt out in chunks of a multiple of 4, see below). */
 #define GATHER_BLOCK 8192
 #define RADIX_TASKS 8
 
