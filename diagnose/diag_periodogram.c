@@ -1,5 +1,5 @@
 /* diag_periodogram.c - periodogram ordinates by FFTW: half-length complex, real or chirp-z route,
- * the first two in one piece or split into tasks. */
+ * the first two in one piece or split into tasks, the chirp on a smooth or a ladder length. */
 #include "diag_periodogram.h"
 #include "diag_fftplan.h"
 #include "diag_fftsplit.h"
@@ -241,7 +241,8 @@ done:
 
 /* Odd n with a large prime factor (FFTW's prime-length algorithms, planning
  * included, are several times slower there than a smooth length half as
- * long again): Bluestein's identity jt = (j^2 + t^2 - (j-t)^2)/2 turns X_j
+ * long again), and below LADDER_MAX any n whose transform is awkward (see
+ * there): Bluestein's identity jt = (j^2 + t^2 - (j-t)^2)/2 turns X_j
  * into a convolution of a_t = d_t w_t^* with w_k = exp(i pi k^2 / n), taken
  * circularly on the smallest length L >= n + q with prime factors 2, 3, 5
  * and 7 only (LADDER: of the form 2^k or 3 x 2^k, for the plans' sake): the
