@@ -724,17 +724,18 @@ int fit_arma_start(const fit_spec *spec, const double *y, size_t n, double *mpar
 
 /* ---- the fit ----------------------------------------------------------- */
 
-/* sum_t (y_t - shift)^(1 + SQUARE) over Y[0..n-1] by Kahan sums in sixteen
- * interleaved lanes (eight vectors), whose additions overlap instead of
- * each waiting on the last, then the lanes and the last n mod 16 terms in
+/* sum_t x_t over Y[0..n-1], x_t = (y_t - shift)^(1 + SQUARE), or with
+ * Z given x_t = (y_t - shift) / div, also stored in Z[t]; by Kahan sums in
+ * sixteen interleaved lanes (eight vectors), whose additions overlap instead
+ * of each waiting on the last, then the lanes and the last n mod 16 terms in
  * one more Kahan sum.  As accurate as one sequential sum, but not always
  * equal to it in the last bit. */
 #define LANE_VECS 8
 static inline __attribute__((always_inline)) double
-lanes_body(const double *y, size_t n, double shift, const int square)
+lanes_body(const double *y, size_t n, double shift, const int square, double *z, double div)
 {
     v2d s[LANE_VECS], c[LANE_VECS];
-    const v2d sh = { shift, shift };
+    const v2d sh = { shift, shift }, dv = { div, div };
     for (int l = 0; l < LANE_VECS; l++)
         s[l] = c[l] = sh - sh;
     size_t t = 0;
@@ -746,6 +747,10 @@ lanes_body(const double *y, size_t n, double shift, const int square)
             x -= sh;
             if (square)
                 x *= x;
+            if (z) {
+                x /= dv;
+                memcpy(z + t + 2 * (size_t)l, &x, sizeof x);
+            }
             v2d v = x - c[l], u = s[l] + v;
             c[l] = (u - s[l]) - v;
             s[l] = u;
@@ -758,6 +763,8 @@ lanes_body(const double *y, size_t n, double shift, const int square)
         }
     for (; t < n; t++) {
         double r = y[t] - shift;
+        if (z)
+            r = z[t] = r / div;
         kahan_add(&tot, &comp, square ? r * r : r);
     }
     return tot - comp;
@@ -765,51 +772,21 @@ lanes_body(const double *y, size_t n, double shift, const int square)
 
 static double lanes_sum(const double *y, size_t n, double shift, int square)
 {
-    return square ? lanes_body(y, n, shift, 1) : lanes_body(y, n, shift, 0);
+    return square ? lanes_body(y, n, shift, 1, NULL, 1.0) : lanes_body(y, n, shift, 0, NULL, 1.0);
 }
 
 /* The standardisation of Y[0..n-1]: LOC, the mean (0 without MEAN); SCALE,
  * the root mean square about it; Z = (y - loc) / scale and ZBAR, the mean
- * of Z; each by the sequential Kahan sum over t = 0..n-1 that defines it.
- * Those are three passes, each waiting on its own additions.  Here one pass
- * runs the three sums side by side, the later two from guesses of loc and
- * scale (lanes_sum, whose additions overlap), and redoes a sum with the
- * exact value only when a guess differs from it in any bit: the results
- * are always those of the three passes. */
+ * of Z; each sum by lanes_body, so that none waits on its own additions:
+ * two reads of Y, and one more that writes Z. */
 static void standardise(const double *y, size_t n, int mean, double *z, double *loc_out,
                         double *scale_out, double *zbar_out)
 {
-    const double gl = mean ? lanes_sum(y, n, 0.0, 0) / (double)n : 0.0;
-    const double gs = sqrt(lanes_sum(y, n, gl, 1) / (double)n);
-    double loc = 0.0, cl = 0.0, ss = 0.0, cs = 0.0, zb = 0.0, cz = 0.0;
-    for (size_t t = 0; t < n; t++) {
-        if (mean)
-            kahan_add(&loc, &cl, y[t]);
-        double r = y[t] - gl;
-        kahan_add(&ss, &cs, r * r);
-        z[t] = r / gs;
-        kahan_add(&zb, &cz, z[t]);
-    }
-    if (mean)
-        loc /= (double)n;
-    if (loc != gl) {
-        ss = cs = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            double r = y[t] - loc;
-            kahan_add(&ss, &cs, r * r);
-        }
-    }
-    const double scale = sqrt(ss / (double)n);
-    if (loc != gl || scale != gs) {
-        zb = cz = 0.0;
-        for (size_t t = 0; t < n; t++) {
-            z[t] = (y[t] - loc) / scale;
-            kahan_add(&zb, &cz, z[t]);
-        }
-    }
+    const double loc = mean ? lanes_sum(y, n, 0.0, 0) / (double)n : 0.0;
+    const double scale = sqrt(lanes_sum(y, n, loc, 1) / (double)n);
     *loc_out = loc;
     *scale_out = scale;
-    *zbar_out = zb / (double)n;
+    *zbar_out = isfinite(scale) && scale > 0.0 ? lanes_body(y, n, loc, 0, z, scale) / (double)n : 0.0;
 }
 
 /* The optimiser works on the series standardised as z = (y - ybar) / scale

@@ -11,10 +11,15 @@ int fit_arma_pass_covers(const fit_spec *spec);
 
 /* One pass over Y[0..n-1] at the mean parameters MPAR, for a spec that
  * fit_arma_pass_covers; n must exceed the largest AR lag p.  The outputs and
- * the order of every operation are those of fit_arma_resid (E, DE, SSR,
- * GSUM) and fit_arma_hessian (HSUM, JTJ), so the results agree with theirs
- * to the last bit; only the last q residuals and their derivatives are kept,
- * in locals instead of a ring in memory.
+ * the order of every operation are those of the ring-buffer passes behind
+ * fit_arma_resid (E, DE, SSR, GSUM) and fit_arma_hessian (HSUM, JTJ); only
+ * the last q residuals and their derivatives are kept, in locals instead of
+ * a ring in memory.  Below 65536 residuals the results agree with the ring
+ * passes' to the last bit.  From there the sums are formed over two
+ * stretches, the second from the half-way point (on a second thread when
+ * one is free, from a warmed-up state checked bit for bit against the
+ * first stretch's end), and added: E and DE still agree to the last bit,
+ * the sums to rounding; on one thread or two they are the same bits.
  *   GSUM  must not be NULL: this pass always forms the derivatives;
  *   JTJ   (may be NULL) sum de_t de_t' (nmean x nmean, row-major);
  *   HSUM  (may be NULL) sum (de_t de_t' + e_t d2e_t), the second-derivative
