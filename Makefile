@@ -19,14 +19,17 @@ WARN      := -Wall -Wextra -Werror -Wshadow -Wpointer-arith -Wstrict-prototypes 
 CFLAGS    ?= $(OPT)
 ALL_CFLAGS = -std=c11 -D_DEFAULT_SOURCE -ffp-contract=off $(WARN) $(CFLAGS) $(SAN) -fopenmp -Ifit -Idiagnose -Ishell \
              $(shell pkg-config --cflags $(PKGS))
-LDLIBS    := $(shell pkg-config --libs $(PKGS)) -lcsv -lm
+# cairo's headers only: shell/sh_cairo.c loads the library when a drawing
+# first needs it, so that a start does not pay for its 19 libraries.
+LDLIBS    := $(shell pkg-config --libs $(filter-out cairo,$(PKGS))) -lcsv -lm
 # The program links GCC's OpenMP runtime statically, so that the default it
 # sets for idle threads (shell/sh_main.c) is in place before the runtime
 # reads its environment; other compilers link their own runtime as usual.
 GOMP_A    := $(if $(findstring clang,$(CC)),,$(shell $(CC) -print-file-name=libgomp.a))
 PROG_OMP  := $(if $(filter /%,$(GOMP_A)),$(GOMP_A) -lpthread -ldl,-fopenmp)
 PROG_CFLAGS = $(filter-out -fopenmp,$(ALL_CFLAGS))
-TEST_LIBS := $(shell pkg-config --libs cmocka)
+# the drawing tests read pixels through cairo itself
+TEST_LIBS := $(shell pkg-config --libs cmocka cairo)
 VERSION   := $(shell cat VERSION 2>/dev/null || echo 0.0.0)
 
 LIB_SRC   := $(sort $(wildcard fit/*.c diagnose/*.c))

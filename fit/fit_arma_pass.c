@@ -345,8 +345,9 @@ static int same_state(const pass_state *a, const pass_state *b, int nm, int ma0,
  * filter x_t = -sum_j ma_j x_{t-j}, which shrinks as rho^t, rho the largest
  * modulus of the roots of z^q + ma_1 z^(q-1) + ... + ma_q; the derivatives
  * carry factors t and t^2 on top, so rho^W is taken well below 1e-30.
- * 0 where the filter does not shrink fast enough to be worth it (the
- * caller then runs the stretches one after the other). */
+ * SPAN is the first stretch's length and ROOM the most W may be; 0 where
+ * the filter does not shrink fast enough for that (the caller then runs
+ * the stretches one after the other). */
 static size_t warm_length(const double *ma, int nma, size_t span, size_t room)
 {
     double rho = 0.0;

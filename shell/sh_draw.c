@@ -1,5 +1,6 @@
 /* sh_draw.c - cairo rendering of chart descriptions onto any surface (SVG, PDF, PNG). */
 #include "sh_draw.h"
+#include "sh_cairo.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -665,6 +666,8 @@ static void draw_body(cairo_t *cr, const sh_chart *c, axes *a, legend *lg, int *
 
 int sh_draw_chart(cairo_t *cr, const sh_chart *c, double x, double y, double w, double h)
 {
+    if (sh_cairo_open(NULL, 0) != HN_OK)
+        return HN_EIO;
     if (!cr || !c || !(w >= SH_DRAW_MIN_SIZE) || !(h >= SH_DRAW_MIN_SIZE) ||
         (unsigned)c->kind > (unsigned)SH_CHART_FAN)
         return HN_EINVAL;
@@ -791,6 +794,8 @@ static char *prefix_ids(const char *s, const char *pfx)
 int sh_draw_svg_string(const sh_chart *c, double w, double h, const char *id_prefix,
                        char **out, size_t *len)
 {
+    if (sh_cairo_open(NULL, 0) != HN_OK)
+        return HN_EIO;
     *out = NULL;
     if (len)
         *len = 0;
@@ -836,6 +841,8 @@ int sh_draw_svg_string(const sh_chart *c, double w, double h, const char *id_pre
 
 int sh_draw_png_file(const sh_chart *c, int w, int h, const char *path)
 {
+    if (sh_cairo_open(NULL, 0) != HN_OK)
+        return HN_EIO;
     if (!c || !path || w < (int)SH_DRAW_MIN_SIZE || h < (int)SH_DRAW_MIN_SIZE || w > 20000 || h > 20000)
         return HN_EINVAL;
     cairo_surface_t *s = cairo_image_surface_create(CAIRO_FORMAT_ARGB32, w, h);
@@ -848,6 +855,8 @@ int sh_draw_png_file(const sh_chart *c, int w, int h, const char *path)
 
 int sh_draw_pdf_file(const sh_chart *c, double w, double h, const char *path)
 {
+    if (sh_cairo_open(NULL, 0) != HN_OK)
+        return HN_EIO;
     if (!c || !path || !(w >= SH_DRAW_MIN_SIZE) || !(h >= SH_DRAW_MIN_SIZE))
         return HN_EINVAL;
     cairo_surface_t *s = cairo_pdf_surface_create(path, w, h);

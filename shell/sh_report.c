@@ -2,6 +2,7 @@
  * checks, charts, notes, method notes and limitations, in HTML or PDF. */
 #include "sh_report.h"
 #include "sh_figure.h"
+#include "sh_cairo.h"
 #include "sh_draw.h"
 #include "sh_file.h"
 #include "sh_fmt.h"
@@ -768,6 +769,8 @@ int sh_report_write(sh_session *s, const char *path, int pdf, int h, sh_report_i
         snprintf(err, errlen, "no series loaded: nothing to report (use 'load FILE column=NAME')");
         return -1;
     }
+    if (sh_cairo_open(err, errlen) != HN_OK)     /* the charts need it, in either form */
+        return -1;
     sh_model *cur = s->current >= 0 && s->current < s->nmodels ? &s->models[s->current] : NULL;
     int model_ok = cur && sh_figure_model_on_series(s, cur);
     if (model_ok && !cur->checked) {
