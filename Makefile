@@ -69,12 +69,12 @@ check: hone $(TEST_BIN)
 
 BENCH_BIN := $(BUILD)/bench/hbench $(BUILD)/bench/empty
 
-$(BUILD)/bench/hbench: tests/bench/hbench.c $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
+$(BUILD)/bench/hbench: tests/bench/hbench.c $(BUILD)/libhoneshell.a $(BUILD)/libhone.a Makefile
 	@mkdir -p $(dir $@)
 	@echo "  LINK $@"
 	@$(CC) $(ALL_CFLAGS) -o $@ $< $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(LDLIBS)
 
-$(BUILD)/bench/empty: tests/bench/empty.c
+$(BUILD)/bench/empty: tests/bench/empty.c Makefile
 	@mkdir -p $(dir $@)
 	@echo "  LINK $@"
 	@$(CC) $(ALL_CFLAGS) -o $@ $< -Wl,--no-as-needed $(LDLIBS)

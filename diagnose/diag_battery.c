@@ -18,6 +18,7 @@
 #include "diag_battery.h"
 #include "diag_checks.h"
 #include "diag_stats.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -223,7 +224,7 @@ static double ar_share(const double *x, size_t n, int squares, const double *giv
         return NAN;
     }
     double *acf = malloc((size_t)order * sizeof *acf), *pacf = malloc((size_t)order * sizeof *pacf);
-    double *sq = squares ? malloc(n * sizeof *sq) : NULL;
+    double *sq = squares ? hn_alloc_long(n * sizeof *sq) : NULL;
     double share = NAN;
     if (!acf || !pacf || (squares && !sq)) {
         *ok_mem = 0;
@@ -477,7 +478,7 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
      * in its own slot, so the order and digits are those of one thread. */
     /* On the direct route the series is centred once for the ACF, the
      * cumulative periodogram and Jarque-Bera (each would form the same copy). */
-    double *dev = share_x ? malloc(n * sizeof *dev) : NULL, ss0 = 0.0;
+    double *dev = share_x ? hn_alloc_long(n * sizeof *dev) : NULL, ss0 = 0.0;
     if (share_x && !dev) {
         diag_battery_free(out);
         return HN_ENOMEM;

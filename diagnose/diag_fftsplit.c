@@ -1,6 +1,7 @@
 /* diag_fftsplit.c - one decimation-in-time step over FFTW transforms, its pieces as OpenMP tasks. */
 #include "diag_fftsplit.h"
 #include "diag_fftplan.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <limits.h>
@@ -25,7 +26,7 @@ void diag_split_free(diag_split *out)
 {
     if (!out)
         return;
-    fftw_free(out->t);
+    free(out->t);
     out->t = NULL;
 }
 
@@ -90,8 +91,8 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
     /* Rows start on 64-byte boundaries, so that each sits at the alignment
      * of the arrays its plan was made for (FFTW's new-array rule). */
     size_t pitch = (s + 3) & ~(size_t)3, rpitch = (s + 7) & ~(size_t)7;
-    fftw_complex *t = fftw_alloc_complex(r * pitch);
-    double *re = packed ? NULL : fftw_alloc_real(r * rpitch);
+    fftw_complex *t = hn_alloc_long_aligned(64, r * pitch * sizeof *t);
+    double *re = packed ? NULL : hn_alloc_long_aligned(64, r * rpitch * sizeof *re);
     turns w = { NULL, NULL, 0, 0 };
     diag_plan *row = NULL;
     fftw_plan many = NULL, last = NULL;
@@ -172,8 +173,8 @@ done:
     diag_plan_release(row);
     diag_plan_destroy(many);
     diag_plan_destroy(last);
-    fftw_free(t);
-    fftw_free(re);
+    free(t);
+    free(re);
     free(w.coarse);
     return rc;
 }

@@ -4,6 +4,7 @@
 #include "diag_fftplan.h"
 #include "diag_fftsplit.h"
 #include "diag_sum.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -159,7 +160,7 @@ static int periodogram_even(const double *d, size_t n, size_t q, int split, doub
             goto done;
         z = (spectrum){ sp.t, sp.s, sp.pitch };
     } else {
-        a = fftw_alloc_complex(m);
+        a = hn_alloc_long_aligned(64, m * sizeof *a);
         if (!a || !(p = diag_plan_get(DIAG_PLAN_C2C_FWD, (int)m, a, a))) {
             rc = HN_ENOMEM;
             goto done;
@@ -195,7 +196,7 @@ static int periodogram_even(const double *d, size_t n, size_t q, int split, doub
     }
 done:
     diag_plan_release(p);
-    fftw_free(a);
+    free(a);
     diag_split_free(&sp);
     free(fine);
     return rc;
@@ -216,8 +217,8 @@ static int periodogram_real(const double *d, size_t n, size_t q, int split, doub
             goto done;
         z = (spectrum){ sp.t, sp.s, sp.pitch };
     } else {
-        in = fftw_alloc_real(n);
-        out = fftw_alloc_complex(n / 2 + 1);
+        in = hn_alloc_long_aligned(64, n * sizeof *in);
+        out = hn_alloc_long_aligned(64, (n / 2 + 1) * sizeof *out);
         if (!in || !out || !(p = diag_plan_get(DIAG_PLAN_R2C, (int)n, in, out))) {
             rc = HN_ENOMEM;
             goto done;
@@ -233,8 +234,8 @@ static int periodogram_real(const double *d, size_t n, size_t q, int split, doub
     }
 done:
     diag_plan_release(p);
-    fftw_free(in);
-    fftw_free(out);
+    free(in);
+    free(out);
     diag_split_free(&sp);
     return rc;
 }
@@ -271,7 +272,7 @@ static unsigned long filter_uses;
 
 static void filter_free(chirp_filter *f)
 {
-    fftw_free(f->B);
+    free(f->B);
     free(f);
 }
 
@@ -342,7 +343,8 @@ static int periodogram_chirp(const double *d, size_t n, size_t q, int ladder, do
         shift++;
     const size_t B = (size_t)1 << shift, A = (two_n >> shift) + 1;
     chirp_filter *kept_b = ladder ? filter_take(n, q, L) : NULL;
-    fftw_complex *a = fftw_alloc_complex(L), *b = kept_b ? NULL : fftw_alloc_complex(L);
+    fftw_complex *a = hn_alloc_long_aligned(64, L * sizeof *a);
+    fftw_complex *b = kept_b ? NULL : hn_alloc_long_aligned(64, L * sizeof *b);
     double *tab = malloc(2 * (A + B) * sizeof *tab);
     diag_plan *fwd = NULL, *inv = NULL;
     int rc = HN_OK;
@@ -410,8 +412,8 @@ done:
     diag_plan_release(fwd);
     diag_plan_release(inv);
     filter_release(kept_b);
-    fftw_free(a);
-    fftw_free(b);
+    free(a);
+    free(b);
     free(tab);
     return rc;
 }

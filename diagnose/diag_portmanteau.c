@@ -2,6 +2,7 @@
 #include "diag_checks.h"
 #include "diag_periodogram.h"
 #include "diag_stats.h"
+#include "hn_mem.h"
 #include "hn_status.h"
 
 #include <math.h>
@@ -293,7 +294,7 @@ static int cum_periodogram(const double *x, const double *centred, size_t n, dou
         return HN_ESHORT;
     }
     size_t q = (n - 1) / 2, M = q - 1;
-    double *dev = centred ? NULL : malloc(n * sizeof *dev), *I = malloc(q * sizeof *I);
+    double *dev = centred ? NULL : hn_alloc_long(n * sizeof *dev), *I = hn_alloc_long(q * sizeof *I);
     const double *d = centred ? centred : dev;
     int rc = HN_OK;
     if (!d || !I) {

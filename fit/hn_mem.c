@@ -30,6 +30,14 @@ void *hn_alloc_long(size_t bytes)
     return advise(malloc(bytes), bytes);
 }
 
+void *hn_alloc_long_aligned(size_t align, size_t bytes)
+{
+    void *p = NULL;
+    if (posix_memalign(&p, align, bytes ? bytes : 1) != 0)
+        return NULL;
+    return bytes < HN_MEM_LONG ? p : advise(p, bytes);
+}
+
 void *hn_calloc_long(size_t bytes)
 {
     if (bytes < HN_MEM_LONG)

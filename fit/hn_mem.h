@@ -20,6 +20,10 @@ void *hn_alloc_long(size_t bytes);
 /* BYTES of zeroed memory, or NULL. */
 void *hn_calloc_long(size_t bytes);
 
+/* BYTES of uninitialised memory at a multiple of ALIGN (a power of two,
+ * at least sizeof(void *)), advised likewise, or NULL. */
+void *hn_alloc_long_aligned(size_t align, size_t bytes);
+
 /* realloc(P, BYTES), advised likewise; NULL on failure, P then untouched. */
 void *hn_realloc_long(void *p, size_t bytes);
 
