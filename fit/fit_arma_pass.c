@@ -313,22 +313,25 @@ static void range_any(const fit_spec *spec, const double *y, size_t lo, size_t h
 #undef PASS_CASE
 }
 
+static int same_bits(double x, double y)
+{
+    return memcmp(&x, &y, sizeof x) == 0;
+}
+
 /* The same state, bit for bit, in every entry the pass reads (lanes past a
  * row's diagonal never are). */
 static int same_state(const pass_state *a, const pass_state *b, int nm, int ma0, int nma,
                       int want_h)
 {
     for (int j = 0; j < nma; j++) {
-        if (memcmp(&a->pe[j], &b->pe[j], sizeof a->pe[j]))
-            return 0;
-        if (want_h && memcmp(&a->phm[j], &b->phm[j], sizeof a->phm[j]))
+        if (!same_bits(a->pe[j], b->pe[j]) || (want_h && !same_bits(a->phm[j], b->phm[j])))
             return 0;
         for (int k = 0; k < nm; k++)
-            if (memcmp(&LANE(a->pdv[j], k), &LANE(b->pdv[j], k), sizeof(double)))
+            if (!same_bits(LANE(a->pdv[j], k), LANE(b->pdv[j], k)))
                 return 0;
         for (int r = 0; want_h && r < nma; r++)
             for (int l = 0; l <= ma0 + r; l++)
-                if (memcmp(&LANE(a->phv[j][r], l), &LANE(b->phv[j][r], l), sizeof(double)))
+                if (!same_bits(LANE(a->phv[j][r], l), LANE(b->phv[j][r], l)))
                     return 0;
     }
     return 1;
