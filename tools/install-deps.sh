@@ -13,3 +13,12 @@ if [ -n "$missing" ]; then
   apt-get update -qq
   apt-get install -y -qq --no-install-recommends $missing
 fi
+# The program links LAPACK's static archive, which needs the Fortran
+# runtime's archive of the installed gcc (the Makefile falls back to the
+# shared libraries without it).
+fortran="libgfortran-$(gcc -dumpversion | cut -d. -f1)-dev"
+if ! dpkg-query -W -f='${Status}' "$fortran" 2>/dev/null | grep -q "install ok installed"; then
+  export DEBIAN_FRONTEND=noninteractive
+  [ -n "$missing" ] || apt-get update -qq
+  apt-get install -y -qq --no-install-recommends "$fortran"
+fi
