@@ -1095,8 +1095,8 @@ int fit_arma_estimate(const double *y, size_t n, const fit_spec *spec,
         goto fail;
     }
     /* location and scale of the standardisation, z, and its mean for the
-     * start as fit_arma_start forms it (fit_model refuses |y| > 1e150, so
-     * the squares cannot overflow) */
+     * start (fit_model refuses |y| > 1e150, so the squares cannot
+     * overflow) */
     double loc, scale, zbar;
     standardise(y, n, spec->mean, z, &loc, &scale, &zbar);
     if (!isfinite(scale) || !isfinite(loc)) {

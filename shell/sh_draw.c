@@ -794,11 +794,11 @@ static char *prefix_ids(const char *s, const char *pfx)
 int sh_draw_svg_string(const sh_chart *c, double w, double h, const char *id_prefix,
                        char **out, size_t *len)
 {
-    if (sh_cairo_open(NULL, 0) != HN_OK)
-        return HN_EIO;
     *out = NULL;
     if (len)
         *len = 0;
+    if (sh_cairo_open(NULL, 0) != HN_OK)
+        return HN_EIO;
     if (!c || !(w >= SH_DRAW_MIN_SIZE) || !(h >= SH_DRAW_MIN_SIZE))
         return HN_EINVAL;
     if (id_prefix) {

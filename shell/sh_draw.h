@@ -18,7 +18,8 @@
  * The context's state is saved and restored around the drawing.
  * Returns HN_OK; HN_EINVAL for a NULL argument, an unknown kind or a
  * rectangle smaller than SH_DRAW_MIN_SIZE; HN_ENOMEM when memory runs out;
- * HN_EIO when the context reports another error. */
+ * HN_EIO when the context reports another error, and before anything is
+ * drawn when the cairo library cannot be loaded (sh_cairo.h). */
 int sh_draw_chart(cairo_t *cr, const sh_chart *c, double x, double y, double w, double h);
 
 /* Render chart C alone as an SVG document of W x H pixels (the document's
