@@ -160,6 +160,14 @@ static const size_t COST_ORDER[] = { 5, 1, 8, 7, 2, 10, 0, 9, 3, 4, 6 };
 _Static_assert(sizeof COST_ORDER / sizeof COST_ORDER[0] == NCHECKS, "one entry per check");
 _Static_assert(NCHECKS <= DIAG_MAX_TESTS, "the battery's result holds every check");
 
+/* Whether check I waits for the mean and sd, the centred copy or the ACF
+ * of x (those that read x alone, or the ACF of x^2, do not). */
+static int needs_centre(size_t i)
+{
+    return CHECKS[i].c.bare || CHECKS[i].c.dacf || CHECKS[i].c.d || CHECKS[i].c.ms ||
+           CHECKS[i].a.adj || CHECKS[i].a.plain;
+}
+
 /* Below this length one thread does the battery: starting a team costs
  * more than the checks gain. */
 #define PARALLEL_MIN_N 20000
@@ -483,37 +491,20 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         diag_battery_free(out);
         return HN_ENOMEM;
     }
-    /* the mean and sd, and on the direct route the centred copy from the
-     * same mean, before anything else: every check waits for one or the
-     * other */
-    int rc = dev ? diag_center_ss_sd(x, n, dev, &ss0, &out->mean, &out->sd)
-                 : diag_mean_sd(x, n, &out->mean, &out->sd);
-    if (rc == HN_OK && !(out->sd > 0.0))
-        rc = HN_ECONST;
-    if (rc != HN_OK) {
-        free(dev);
-        diag_battery_free(out);
-        return rc;
-    }
     diag_lag_sums sums2;
     run_ctx ctx = { x, n, out->m, opt->df_adjust, arch_q, n / w, opt->alpha,
                     share_x ? out->acf : NULL, NULL, (int)top, top2, &sums2, NULL,
-                    NULL, out->mean, out->sd };
-    int rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
+                    dev, 0.0, 0.0 };
+    int rc = HN_OK, rc_acf = HN_OK, rc_acf2 = HN_OK, rcs[NCHECKS];
     double *acf2 = NULL, *lag2 = NULL;
-    ctx.d = dev;
     int par = !omp_in_parallel() && n >= PARALLEL_MIN_N;
 #pragma omp parallel if (par)
 #pragma omp single
     {
-        /* the longest check first (it needs only the centred copy) */
-        for (size_t i = 0; i < NCHECKS; i++)
-            if (CHECKS[i].c.bare) {
-#pragma omp task shared(ctx, out, rcs)
-                rcs[i] = run_check(i, &ctx, &out->tests[i]);
-            }
-#pragma omp task shared(rc_acf, out, ctx, ss0) depend(out: rc_acf)
-        rc_acf = battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out);
+        /* The checks that read x alone start first, for the other threads
+         * to take while this one forms the mean and sd (and on the direct
+         * route the centred copy from the same mean); their results are
+         * dropped should that fail. */
 #pragma omp task shared(rc_acf2, acf2, lag2, sums2, ctx) depend(out: rc_acf2)
         {
             rc_acf2 = want2 ? squares_acf(x, n, top2, &acf2, &sums2, &lag2) : HN_OK;
@@ -522,19 +513,51 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         }
         for (size_t k = 0; k < NCHECKS; k++) {
             size_t i = COST_ORDER[k];
-            if (CHECKS[i].c.bare) {
+            if (needs_centre(i))
                 continue;
-            } else if (CHECKS[i].a.sums) {
+            if (CHECKS[i].a.sums || CHECKS[i].a.sq) {
 #pragma omp task shared(ctx, out, rcs, rc_acf2) depend(in: rc_acf2)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
-            } else if (CHECKS[i].a.adj || CHECKS[i].a.sq || CHECKS[i].a.plain) {
-#pragma omp task shared(ctx, out, rcs, rc_acf, rc_acf2) depend(in: rc_acf, rc_acf2)
-                rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
             } else {
 #pragma omp task shared(ctx, out, rcs)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
             }
         }
+        rc = dev ? diag_center_ss_sd(x, n, dev, &ss0, &out->mean, &out->sd)
+                 : diag_mean_sd(x, n, &out->mean, &out->sd);
+        if (rc == HN_OK && !(out->sd > 0.0))
+            rc = HN_ECONST;
+        ctx.mean = out->mean;
+        ctx.sd = out->sd;
+        if (rc == HN_OK) {
+#pragma omp task shared(rc_acf, out, ctx, ss0) depend(out: rc_acf)
+            rc_acf = battery_acf(x, ctx.d, ss0, n, top, opt->df_adjust, out);
+            for (size_t k = 0; k < NCHECKS; k++) {
+                size_t i = COST_ORDER[k];
+                if (!needs_centre(i) || CHECKS[i].c.bare) {
+                    continue;
+                } else if (CHECKS[i].a.adj || CHECKS[i].a.plain) {
+#pragma omp task shared(ctx, out, rcs, rc_acf) depend(in: rc_acf)
+                    rcs[i] = rc_acf == HN_OK ? run_check(i, &ctx, &out->tests[i]) : rc_acf;
+                } else {
+#pragma omp task shared(ctx, out, rcs)
+                    rcs[i] = run_check(i, &ctx, &out->tests[i]);
+                }
+            }
+            /* the longest check (it needs only the centred copy) on this
+             * thread at once: the tasks it makes share the others' team,
+             * and it waits only for its own */
+            for (size_t i = 0; i < NCHECKS; i++)
+                if (CHECKS[i].c.bare)
+                    rcs[i] = run_check(i, &ctx, &out->tests[i]);
+        }
+    }
+    if (rc != HN_OK) {
+        free(dev);
+        free(acf2);
+        free(lag2);
+        diag_battery_free(out);
+        return rc;
     }
     free(dev);
     ctx.d = NULL;

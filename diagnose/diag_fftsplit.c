@@ -22,6 +22,15 @@ size_t diag_smallest_factor(size_t n)
     return n;
 }
 
+size_t diag_split_radix(size_t len)
+{
+    static const size_t kernel[] = { 13, 11, 7, 5, 3, 2 };
+    for (size_t i = 0; i < sizeof kernel / sizeof kernel[0]; i++)
+        if (len % kernel[i] == 0 && len > kernel[i])
+            return kernel[i];
+    return diag_smallest_factor(len);
+}
+
 void diag_split_free(diag_split *out)
 {
     if (!out)
@@ -84,7 +93,7 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
     memset(out, 0, sizeof *out);
     if (!x || len < 4 || len > INT_MAX)
         return HN_EINVAL;
-    size_t r = diag_smallest_factor(len);
+    size_t r = diag_split_radix(len);
     if (r == len)
         return HN_EINVAL;
     size_t s = len / r;
@@ -116,6 +125,7 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
     }
 
     /* 1. x_{a + r u} into row a at u: x is read in order, r rows written. */
+#pragma omp taskgroup
     for (size_t u0 = 0; u0 < s; u0 += GATHER_BLOCK) {
 #pragma omp task firstprivate(u0) shared(x, t, re)
         {
@@ -133,10 +143,10 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
             }
         }
     }
-#pragma omp taskwait
 
     /* 2. Each row's transform (a real row's upper half from the lower by
      * symmetry), then its turn. */
+#pragma omp taskgroup
     for (size_t a = 0; a < r; a++) {
 #pragma omp task firstprivate(a) shared(t, re, row, w)
         {
@@ -154,15 +164,14 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
                 turn_row(z, s, a, &w);
         }
     }
-#pragma omp taskwait
 
     /* 3. Length-r transforms down the columns, in place: column k1's
      * entries a become X_{k1 + s a}. */
+#pragma omp taskgroup
     for (size_t c = 0; c < chunks; c++) {
 #pragma omp task firstprivate(c) shared(t, many, last)
         fftw_execute_dft(c + 1 < chunks ? many : last, t + c * C, t + c * C);
     }
-#pragma omp taskwait
 
     out->t = t;
     out->r = r;

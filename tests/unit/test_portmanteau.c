@@ -1,6 +1,7 @@
 /* test_portmanteau.c - t-test, Ljung-Box, Box-Pierce, cumulative periodogram and their tail probabilities. */
 #include "testutil.h"
 #include "diag_checks.h"
+#include "diag_fftsplit.h"
 #include "diag_periodogram.h"
 #include "diag_stats.h"
 #include "hn_status.h"
@@ -9,6 +10,7 @@
 #include <gsl/gsl_multifit.h>
 #include <gsl/gsl_randist.h>
 #include <gsl/gsl_rng.h>
+#include <omp.h>
 
 /* Open a file under the reference directory. */
 static FILE *ref_open(const char *ref, const char *rel, char *path, size_t len)
@@ -313,8 +315,7 @@ static void test_detail(void **state)
  * route follows the rule in diag_periodogram.c (below n = 32768, a
  * transform with a prime factor above 16: chirp-z on a length 2^k or 3 x
  * 2^k; above, largest prime factor of an odd n above 16384: chirp-z; a
- * transform of 2^17 points or more with a prime factor above 16, not prime:
- * split), checked on both sides of 32768, on 16411 and 3 x 16411, which are
+ * transform with a prime factor above 16, not prime: split), checked on both sides of 32768, on 16411 and 3 x 16411, which are
  * prime and not, and on lengths near 10^6. */
 static int is_prime(size_t n)
 {
@@ -404,17 +405,29 @@ static void test_periodogram_routes(void **state)
     assert_int_equal(diag_periodogram_route(1001), 1);         /* 7 11 13 */
     assert_int_equal(diag_periodogram_route(2187), 1);
     assert_int_equal(diag_periodogram_route(32766), 5);        /* half 3 43 127, below 32768 */
-    assert_int_equal(diag_periodogram_route(32770), 0);        /* half 5 29 113, from 32768 on */
-    assert_int_equal(diag_periodogram_route(32769), 1);        /* 3^2 11 331 */
+    assert_int_equal(diag_periodogram_route(32770), 3);        /* half 5 29 113, from 32768 on */
+    assert_int_equal(diag_periodogram_route(32769), 4);        /* 3^2 11 331 */
+    assert_int_equal(diag_periodogram_route(32768), 0);        /* smooth: whole */
+    assert_int_equal(diag_periodogram_route(3 * 5 * 7 * 11 * 13 * 16), 0);
+    assert_int_equal(diag_periodogram_route(3 * 5 * 7 * 11 * 13 * 3), 1);
     assert_int_equal(diag_periodogram_route(999997), 4);       /* 757 x 1321 */
-    assert_int_equal(diag_periodogram_route(99997), 1);        /* below 2^17 */
+    assert_int_equal(diag_periodogram_route(99997), 4);        /* 19^2 277 */
+    assert_int_equal(diag_periodogram_route(99991), 2);        /* prime above 16384 */
     assert_int_equal(diag_periodogram_route(16411), 5);
     assert_int_equal(diag_periodogram_route(3 * 16411), 2);
     assert_int_equal(diag_periodogram_route(1000000), 0);      /* 2^5 5^6 halves */
     assert_int_equal(diag_periodogram_route(999998), 3);       /* half 31 x 127^2 */
     assert_int_equal(diag_periodogram_route(999999), 4);       /* 3^3 7 11 13 37 */
     assert_int_equal(diag_periodogram_route(2 * 65521), 0);    /* half prime */
-    assert_int_equal(diag_periodogram_route(2 * 3 * 21851), 0);/* half below 2^17 */
+    assert_int_equal(diag_periodogram_route(2 * 3 * 21851), 3);/* half 3 x 21851 */
+    /* the split's radix: the largest prime factor up to 13, else the smallest */
+    assert_int_equal(diag_split_radix(999999), 13);
+    assert_int_equal(diag_split_radix(499999), 31);
+    assert_int_equal(diag_split_radix(16129), 127);
+    assert_int_equal(diag_split_radix(2 * 3 * 5 * 7 * 17), 7);
+    assert_int_equal(diag_split_radix(13 * 13), 13);
+    assert_int_equal(diag_split_radix(17 * 19), 17);
+    assert_int_equal(diag_split_radix(4 * 17), 2);
     assert_int_equal(diag_periodogram_route(3 * 3 * 7 * 11 * 13 * 17 * 9), 4);
     const double four[4] = { 1.0, 2.0, 0.0, 1.0 };
     double one;
@@ -424,17 +437,18 @@ static void test_periodogram_routes(void **state)
 /* The split routes on lengths whose rows are long enough to be gathered in
  * several pieces (s > 8192), against FFTW's transform of the whole length in
  * one piece (routes 0 and 1): 262146 = 2 x 3 x 43691 (half-length 3 rows of
- * 43691) and 393219 = 3^2 x 43691 (3 real rows of 131073), Gaussian data
- * (GSL mt19937 seed 37).  Ordinates to 1e-10 of the mean ordinate, totals
- * to 1e-12. */
+ * 43691), 393219 = 3^2 x 43691 (3 real rows of 131073), 140008 = 2^3 x 11 x
+ * 37 x 43 (half-length 11 rows of 6364) and 111111 = 3 x 7 x 11 x 13 x 37
+ * (13 real rows of 8547), Gaussian data (GSL mt19937 seed 37).  Ordinates
+ * to 1e-10 of the mean ordinate, totals to 1e-12. */
 static void test_periodogram_split_long(void **state)
 {
     (void)state;
-    const size_t ns[2] = { 262146, 393219 };
-    const int split[2] = { 3, 4 }, whole[2] = { 0, 1 };
+    const size_t ns[4] = { 262146, 393219, 140008, 111111 };
+    const int split[4] = { 3, 4, 3, 4 }, whole[4] = { 0, 1, 0, 1 };
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 37UL);
-    for (int k = 0; k < 2; k++) {
+    for (int k = 0; k < 4; k++) {
         size_t n = ns[k], q = (n - 1) / 2;
         double *d = malloc(n * sizeof *d), *a = malloc(q * sizeof *a), *b = malloc(q * sizeof *b);
         assert_non_null(d);
@@ -461,6 +475,63 @@ static void test_periodogram_split_long(void **state)
     gsl_rng_free(r);
 }
 
+/* The cumulative periodogram on lengths whose ordinates are formed in tasks
+ * (139992: 69995 of them, half-length 69996 = 2^2 3 19 307 split) and whose
+ * cumulative sums run in blocks (3 and 2 of them; 111111 = 3 7 11 13 37,
+ * split with radix 13): one thread and a team of two give the same bits,
+ * and the KS distance agrees to 1e-12 (relative) with the definition
+ * (header of diag_portmanteau.c) evaluated in long double on the ordinates
+ * of FFTW's whole-length transform.  Gaussian noise plus a sinusoid of
+ * amplitude 0.2 at frequency 0.4, in the second block (GSL mt19937 seed 41). */
+static void test_cum_periodogram_long(void **state)
+{
+    (void)state;
+    const size_t ns[2] = { 139992, 111111 };
+    const int whole[2] = { 0, 1 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 41UL);
+    for (int k = 0; k < 2; k++) {
+        size_t n = ns[k], q = (n - 1) / 2, M = q - 1;
+        double *x = malloc(n * sizeof *x), *d = malloc(n * sizeof *d), *I = malloc(q * sizeof *I);
+        assert_non_null(x);
+        assert_non_null(d);
+        assert_non_null(I);
+        for (size_t t = 0; t < n; t++)
+            x[t] = gsl_ran_gaussian(r, 1.0) + 0.2 * sin(2.0 * M_PI * 0.4 * (double)t);
+        diag_test one, two;
+        int saved = omp_get_max_threads(), rc2 = -1;
+        omp_set_num_threads(1);
+        assert_int_equal(diag_cum_periodogram(x, n, 0.05, &one), HN_OK);
+#pragma omp parallel num_threads(2)
+#pragma omp single
+        rc2 = diag_cum_periodogram(x, n, 0.05, &two);
+        omp_set_num_threads(saved);
+        assert_int_equal(rc2, HN_OK);
+        assert_memory_equal(&one.statistic, &two.statistic, sizeof one.statistic);
+        assert_memory_equal(&one.p, &two.p, sizeof one.p);
+        assert_string_equal(one.detail, two.detail);
+
+        assert_int_equal(diag_center(x, n, d), HN_OK);
+        assert_int_equal(diag_periodogram_by(whole[k], d, n, q, I, NULL), HN_OK);
+        long double total = 0.0L, cum = 0.0L, D = 0.0L;
+        for (size_t j = 0; j < q; j++)
+            total += I[j];
+        for (size_t j = 1; j <= M; j++) {
+            cum += I[j - 1];
+            long double c = cum / total;
+            long double up = (long double)j / (long double)M - c;
+            long double down = c - (long double)(j - 1) / (long double)M;
+            D = fmaxl(D, fmaxl(up, down));
+        }
+        assert_true(D > 0.01L);
+        TU_NEAR(one.statistic / (double)D, 1.0, 1e-12);
+        free(x);
+        free(d);
+        free(I);
+    }
+    gsl_rng_free(r);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -473,6 +544,7 @@ int main(void)
         cmocka_unit_test(test_detail),
         cmocka_unit_test(test_periodogram_routes),
         cmocka_unit_test(test_periodogram_split_long),
+        cmocka_unit_test(test_cum_periodogram_long),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
