@@ -91,6 +91,8 @@ typedef int (*fn_centred_acf)(const double *x, const double *d, size_t n, const 
                               int nlags, double alpha, diag_test *out);
 typedef int (*fn_from_ms)(double mean, double sd, size_t n, double alpha, diag_test *out);
 typedef int (*fn_bare)(const double *d, size_t n, double alpha, diag_test *out);
+typedef int (*fn_pair)(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out,
+                       diag_test *next, int *rc_next);
 
 typedef enum {
     ARG_PLAIN,      /* (x, n, alpha, out) */
@@ -120,34 +122,36 @@ static const struct {
         fn_sums_q sums;
     } a;
     struct {            /* ... from the centred copy and ACF, the centred copy, the mean and sd,
-                         * the centred copy without the practical size (set below) */
+                         * the centred copy without the practical size (set below); this
+                         * check and the next from one pass */
         fn_centred_acf dacf;
         fn_moments d;
         fn_from_ms ms;
         fn_bare bare;
+        fn_pair pair;
     } c;
 } CHECKS[] = {
     { DIAG_MEAN,       ARG_PLAIN,   { .plain = diag_mean_ttest }, { NULL, NULL, NULL, NULL },
                                     { .ms = diag_mean_ttest_from } },
     { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_brown_forsythe_blocks }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { .pair = diag_block_tests } },
     { DIAG_VARIANCE,   ARG_BLOCKS,  { .blocks = diag_anova_blocks }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_ljung_box }, { .adj = diag_ljung_box_acf },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_M_ADJ,   { .lags_adj = diag_box_pierce }, { .adj = diag_box_pierce_acf },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_SERIAL,     ARG_PLAIN,   { .plain = diag_cum_periodogram },
                                     { .plain = diag_cum_periodogram_acf },
                                     { .dacf = diag_cum_periodogram_centred, .bare = diag_cum_periodogram_bare } },
     { DIAG_VOLATILITY, ARG_M,       { .lags = diag_mcleod_li }, { .sq = diag_mcleod_li_acf },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_VOLATILITY, ARG_ARCH_Q,  { .lags = diag_arch_lm }, { .sums = diag_arch_lm_sums },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_runs_test }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_RANDOM,     ARG_PLAIN,   { .plain = diag_turning_points }, { NULL, NULL, NULL, NULL },
-                                    { NULL, NULL, NULL, NULL } },
+                                    { NULL, NULL, NULL, NULL, NULL } },
     { DIAG_NORMAL,     ARG_MOMENTS, { .moments = diag_jarque_bera }, { NULL, NULL, NULL, NULL },
                                     { .d = diag_jarque_bera_centred } },
 };
@@ -513,9 +517,13 @@ int diag_battery_run(const double *x, size_t n, const diag_options *opt, diag_ba
         }
         for (size_t k = 0; k < NCHECKS; k++) {
             size_t i = COST_ORDER[k];
-            if (needs_centre(i))
+            if (needs_centre(i) || (i > 0 && CHECKS[i - 1].c.pair))
                 continue;
-            if (CHECKS[i].a.sums || CHECKS[i].a.sq) {
+            if (CHECKS[i].c.pair) {
+#pragma omp task shared(ctx, out, rcs)
+                rcs[i] = CHECKS[i].c.pair(x, n, ctx.nblocks, ctx.alpha, &out->tests[i],
+                                          &out->tests[i + 1], &rcs[i + 1]);
+            } else if (CHECKS[i].a.sums || CHECKS[i].a.sq) {
 #pragma omp task shared(ctx, out, rcs, rc_acf2) depend(in: rc_acf2)
                 rcs[i] = run_check(i, &ctx, &out->tests[i]);
             } else {

@@ -46,6 +46,10 @@ int diag_cum_periodogram_bare(const double *d, size_t n, double alpha, diag_test
  * and of block means (one-way ANOVA), X cut into NBLOCKS consecutive blocks. */
 int diag_brown_forsythe_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out);
 int diag_anova_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out);
+/* Both from one pass over the blocks (each with the digits it has alone):
+ * returns Brown-Forsythe's code, *RC_ANOVA gets ANOVA's. */
+int diag_block_tests(const double *x, size_t n, size_t nblocks, double alpha, diag_test *bf,
+                     diag_test *anova, int *rc_anova);
 /* The same tests for arbitrary groups: X holds the groups one after another,
  * SIZES[g] observations in group g.  F statistic, dfs and p returned. */
 int diag_anova_groups(const double *x, const size_t *sizes, size_t ngroups,

@@ -359,73 +359,86 @@ static int block_pass(const double *x, const size_t *sizes, size_t nb, int which
     return HN_OK;
 }
 
-/* Shared driver of the two block tests: WHICH 0 = ANOVA of means,
- * 1 = Brown-Forsythe of spreads. */
-static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
-                      diag_test *out, int which)
+/* The two block tests from one block pass: BF (Brown-Forsythe of spreads)
+ * and AOV (ANOVA of means), either NULL for not wanted.  The block means and
+ * sums of squares are the same whether or not BF is wanted, so each test
+ * has the same digits alone or in the pair.  Returns BF's code when BF is
+ * wanted, else AOV's; *RC_AOV (may be NULL) gets AOV's. */
+static int block_tests(const double *x, size_t n, size_t nblocks, double alpha, diag_test *bf,
+                       diag_test *aov, int *rc_aov)
 {
-    const char *name = which ? "brown-forsythe" : "anova";
-    if (!x || nblocks < 2 || !(alpha > 0.0 && alpha < 1.0)) {
-        diag_test_invalid(out, name, DIAG_VARIANCE, "needs data, at least 2 blocks and 0 < alpha < 1");
-        return HN_EINVAL;
-    }
-    if (n < 3 * nblocks) {
-        diag_test_invalid(out, name, DIAG_VARIANCE, "too few observations for the blocks (3 per block needed)");
-        return HN_ESHORT;
+    diag_test *want[2] = { aov, bf };
+    int rcs[2] = { HN_OK, HN_OK };
+    if (!x || nblocks < 2 || !(alpha > 0.0 && alpha < 1.0) || n < 3 * nblocks) {
+        int rc = n < 3 * nblocks && x && nblocks >= 2 && alpha > 0.0 && alpha < 1.0 ? HN_ESHORT
+                                                                                     : HN_EINVAL;
+        for (int which = 0; which < 2; which++)
+            if (want[which])
+                diag_test_invalid(want[which], which ? "brown-forsythe" : "anova", DIAG_VARIANCE,
+                                  rc == HN_EINVAL
+                                      ? "needs data, at least 2 blocks and 0 < alpha < 1"
+                                      : "too few observations for the blocks (3 per block needed)");
+        if (rc_aov)
+            *rc_aov = rc;
+        return rc;
     }
     size_t *sizes = malloc(nblocks * sizeof *sizes);
     double *scratch = malloc(6 * nblocks * sizeof *scratch);
     double *blk = malloc((n / nblocks + 1) * sizeof *blk);
-    if (!sizes || !scratch || !blk) {
-        free(sizes);
-        free(scratch);
-        free(blk);
-        diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
-        return HN_ENOMEM;
-    }
-    block_sizes(n, nblocks, sizes);
+    int rc = sizes && scratch && blk ? HN_OK : HN_ENOMEM;
     /* block means and sums of squares of the shifted data, for the detail
      * and (Brown-Forsythe) the practical size */
     double *bm = scratch, *bss = scratch + nblocks, *more = scratch + 2 * nblocks;
     double *zm = scratch + 4 * nblocks, *zs = scratch + 5 * nblocks;
-    double ssb, ssw, F, df1, df2, p;
-    int rc = block_pass(x, sizes, nblocks, which, blk, bm, bss, zm, zs);
-    free(blk);
-    if (rc == HN_ENOMEM) {
-        diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
-        free(sizes);
-        free(scratch);
-        return HN_ENOMEM;
+    if (rc == HN_OK) {
+        block_sizes(n, nblocks, sizes);
+        rc = block_pass(x, sizes, nblocks, bf != NULL, blk, bm, bss, zm, zs);
     }
-    if (which)
-        anova_combine(sizes, nblocks, zm, zs, &ssb, &ssw);
-    else
-        anova_combine(sizes, nblocks, bm, bss, &ssb, &ssw);
-    rc = f_from_sums(ssb, ssw, n, nblocks, &F, &df1, &df2, &p);
-    if (rc == HN_ENUMERIC) {
-        diag_test_invalid(out, name, DIAG_VARIANCE,
-                          "the sums of squares overflow: values too large for the test");
-    } else if (rc != HN_OK) {
-        diag_test_invalid(out, name, DIAG_VARIANCE, "the data are constant within every block");
-    } else if (which) {
-        /* practical size: largest over smallest block sd */
-        double lo = INFINITY, hi = 0.0;
-        for (size_t b = 0; b < nblocks; b++) {
-            double sd = sqrt(bss[b] / (double)(sizes[b] - 1));
-            lo = sd < lo ? sd : lo;
-            hi = sd > hi ? sd : hi;
+    free(blk);
+    for (int which = 0; which < 2; which++) {
+        diag_test *out = want[which];
+        const char *name = which ? "brown-forsythe" : "anova";
+        if (!out)
+            continue;
+        if (rc == HN_ENOMEM) {
+            diag_test_invalid(out, name, DIAG_VARIANCE, "out of memory");
+            rcs[which] = HN_ENOMEM;
+            continue;
         }
-        diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, lo > 0.0 ? hi / lo : INFINITY,
-             "largest over smallest block sd");
-        describe_blocks(bm, bss, sizes, nblocks, n, alpha, 1, out->detail, sizeof out->detail, more);
-    } else {
-        diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, ssb / (ssb + ssw),
-             "share of variance explained by block means (eta squared)");
-        describe_blocks(bm, bss, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, more);
+        double ssb, ssw, F, df1, df2, p;
+        if (which)
+            anova_combine(sizes, nblocks, zm, zs, &ssb, &ssw);
+        else
+            anova_combine(sizes, nblocks, bm, bss, &ssb, &ssw);
+        int r = f_from_sums(ssb, ssw, n, nblocks, &F, &df1, &df2, &p);
+        if (r == HN_ENUMERIC) {
+            diag_test_invalid(out, name, DIAG_VARIANCE,
+                              "the sums of squares overflow: values too large for the test");
+        } else if (r != HN_OK) {
+            diag_test_invalid(out, name, DIAG_VARIANCE, "the data are constant within every block");
+        } else if (which) {
+            /* practical size: largest over smallest block sd */
+            double lo = INFINITY, hi = 0.0;
+            for (size_t b = 0; b < nblocks; b++) {
+                double sd = sqrt(bss[b] / (double)(sizes[b] - 1));
+                lo = sd < lo ? sd : lo;
+                hi = sd > hi ? sd : hi;
+            }
+            diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, lo > 0.0 ? hi / lo : INFINITY,
+                 "largest over smallest block sd");
+            describe_blocks(bm, bss, sizes, nblocks, n, alpha, 1, out->detail, sizeof out->detail, more);
+        } else {
+            diag_test_fill(out, name, DIAG_VARIANCE, F, df1, p, alpha, ssb / (ssb + ssw),
+                 "share of variance explained by block means (eta squared)");
+            describe_blocks(bm, bss, sizes, nblocks, n, alpha, 0, out->detail, sizeof out->detail, more);
+        }
+        rcs[which] = r == HN_ECONST || r == HN_ENUMERIC ? r : HN_OK;
     }
     free(sizes);
     free(scratch);
-    return rc == HN_ECONST || rc == HN_ENUMERIC ? rc : HN_OK;
+    if (rc_aov)
+        *rc_aov = rcs[0];
+    return bf ? rcs[1] : rcs[0];
 }
 
 /* Brown-Forsythe test of equal variances over NBLOCKS consecutive blocks of
@@ -437,7 +450,7 @@ static int block_test(const double *x, size_t n, size_t nblocks, double alpha,
  * squares overflow) or HN_ENOMEM. */
 int diag_brown_forsythe_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out)
 {
-    return block_test(x, n, nblocks, alpha, out, 1);
+    return block_tests(x, n, nblocks, alpha, out, NULL, NULL);
 }
 
 /* One-way ANOVA of the means of NBLOCKS consecutive blocks of X[0..n-1].
@@ -445,7 +458,13 @@ int diag_brown_forsythe_blocks(const double *x, size_t n, size_t nblocks, double
  * blocks whose mean stands out.  Returns as diag_brown_forsythe_blocks. */
 int diag_anova_blocks(const double *x, size_t n, size_t nblocks, double alpha, diag_test *out)
 {
-    return block_test(x, n, nblocks, alpha, out, 0);
+    return block_tests(x, n, nblocks, alpha, NULL, out, NULL);
+}
+
+int diag_block_tests(const double *x, size_t n, size_t nblocks, double alpha, diag_test *bf,
+                     diag_test *anova, int *rc_anova)
+{
+    return block_tests(x, n, nblocks, alpha, bf, anova, rc_anova);
 }
 
 /* Two-pass mean and sum of squared deviations of X[0..w-1]. */

@@ -442,6 +442,27 @@ static void test_scipy_blocks(void **state)
     REL(t.statistic, ref_value("anova_blocks4_F"), 1e-10);
     REL(t.p, ref_value("anova_blocks4_p"), 1e-10);
     assert_true(t.criterion == DIAG_VARIANCE);
+    /* both from one pass, as the battery takes them: the bits of each alone */
+    diag_test bf, aov, bf1;
+    int rc_aov = -1;
+    assert_int_equal(diag_block_tests(x, n, 4, 0.05, &bf, &aov, &rc_aov), HN_OK);
+    assert_int_equal(rc_aov, HN_OK);
+    assert_int_equal(diag_brown_forsythe_blocks(x, n, 4, 0.05, &bf1), HN_OK);
+    assert_memory_equal(&bf.statistic, &bf1.statistic, sizeof bf.statistic);
+    assert_memory_equal(&bf.p, &bf1.p, sizeof bf.p);
+    assert_memory_equal(&bf.effect, &bf1.effect, sizeof bf.effect);
+    assert_string_equal(bf.detail, bf1.detail);
+    assert_memory_equal(&aov.statistic, &t.statistic, sizeof t.statistic);
+    assert_memory_equal(&aov.p, &t.p, sizeof t.p);
+    assert_memory_equal(&aov.effect, &t.effect, sizeof t.effect);
+    assert_string_equal(aov.detail, t.detail);
+    /* and their refusals */
+    assert_int_equal(diag_block_tests(x, 11, 4, 0.05, &bf, &aov, &rc_aov), HN_ESHORT);
+    assert_int_equal(rc_aov, HN_ESHORT);
+    assert_false(bf.valid);
+    assert_false(aov.valid);
+    assert_int_equal(diag_block_tests(x, n, 1, 0.05, &bf, &aov, &rc_aov), HN_EINVAL);
+    assert_int_equal(rc_aov, HN_EINVAL);
     free(x);
 }
 
