@@ -72,14 +72,19 @@ static size_t ladder_length(size_t m)
 #define SMOOTH_PRIME 16
 
 /* Below LADDER_MAX, an n whose transform (half-length complex for even n,
- * real for odd n) has a prime factor above SMOOTH_PRIME takes the chirp on
+ * real for odd n) has a prime factor above LADDER_PRIME takes the chirp on
  * a ladder length.  FFTW plans each length anew, and for such lengths the
  * plan costs far more than the transform: at n near 2 x 10^4, 0.6 to 57 ms
  * (a prime length) against 0.2 to 2.8 ms for the transform, under the
- * planner's lock, which a batch over series of many lengths then waits on;
- * the chirp's three transforms on 2^15 points take about 0.6 ms there, and
- * their plans serve every length up to the next rung. */
+ * planner's lock, which a batch over series of many lengths then waits on.
+ * Factors of 11 and 13 do it too, though FFTW has kernels for them: complex
+ * lengths 10^4 to 1.6 x 10^4 such as 10890 = 2 3^2 5 11^2 took 4 to 40 ms
+ * to plan and 0.1 ms to run, where 24 lengths with no prime factor above
+ * 7 took at most 1.1 ms to plan.  The chirp's three transforms on 2^15
+ * points take about 0.6 ms there, and their plans serve every length up to
+ * the next rung. */
 #define LADDER_MAX 32768
+#define LADDER_PRIME 7
 /* From this many ordinates their formation is split into ORD_TASKS tasks,
  * which the threads of an enclosing team share (the battery's other checks
  * are done by then, and the transform's last step leaves a thread idle). */
@@ -95,7 +100,7 @@ static int splits(size_t len)
 int diag_periodogram_route(size_t n)
 {
     size_t len = n % 2 == 0 ? n / 2 : n;
-    if (n < LADDER_MAX && len > 1 && largest_prime_factor(len) > SMOOTH_PRIME)
+    if (n < LADDER_MAX && len > 1 && largest_prime_factor(len) > LADDER_PRIME)
         return 5;
     if (n % 2 == 0)
         return splits(n / 2) ? 3 : 0;

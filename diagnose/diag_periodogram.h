@@ -14,9 +14,9 @@
  * factors are all at most 16384, a real transform of length n; other odd n,
  * Bluestein's chirp-z identity on a 2-3-5-7-smooth length.  The first two
  * are split into tasks (diag_fftsplit.h) when their transform has a prime
- * factor above 16 without being prime; below n = 32768 such a transform,
- * and one of a prime length, is replaced by the chirp on a length 2^k or
- * 3 x 2^k.  The ordinates are formed in tasks too from 65536 of them.
+ * factor above 16 without being prime; below n = 32768 a transform with a
+ * prime factor above 7 is replaced by the chirp on a length 2^k or 3 x 2^k
+ * (FFTW's plans for those lengths cost many times their transform).  The ordinates are formed in tasks too from 65536 of them.
  * Returns
  * HN_OK or HN_ENOMEM; ordinates that overflow are left infinite for the
  * caller to judge. */

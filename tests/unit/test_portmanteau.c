@@ -313,7 +313,7 @@ static void test_detail(void **state)
  * 1e-12; the KS distance of the default route to 1e-10.  The split routes
  * refuse a prime length, as the half-length one an odd n.  The default
  * route follows the rule in diag_periodogram.c (below n = 32768, a
- * transform with a prime factor above 16: chirp-z on a length 2^k or 3 x
+ * transform with a prime factor above 7: chirp-z on a length 2^k or 3 x
  * 2^k; above, largest prime factor of an odd n above 16384: chirp-z; a
  * transform with a prime factor above 16, not prime: split), checked on both sides of 32768, on 16411 and 3 x 16411, which are
  * prime and not, and on lengths near 10^6. */
@@ -402,7 +402,10 @@ static void test_periodogram_routes(void **state)
     assert_int_equal(diag_periodogram_route(1000), 0);
     assert_int_equal(diag_periodogram_route(1009), 5);         /* prime, below 32768 */
     assert_int_equal(diag_periodogram_route(2018), 5);         /* half prime */
-    assert_int_equal(diag_periodogram_route(1001), 1);         /* 7 11 13 */
+    assert_int_equal(diag_periodogram_route(1001), 5);         /* 7 11 13, below 32768 */
+    assert_int_equal(diag_periodogram_route(21780), 5);        /* half 2 3^2 5 11^2 */
+    assert_int_equal(diag_periodogram_route(3 * 5 * 7 * 7 * 9), 1);   /* 7-smooth */
+    assert_int_equal(diag_periodogram_route(2 * 3 * 5 * 7 * 64), 0);
     assert_int_equal(diag_periodogram_route(2187), 1);
     assert_int_equal(diag_periodogram_route(32766), 5);        /* half 3 43 127, below 32768 */
     assert_int_equal(diag_periodogram_route(32770), 3);        /* half 5 29 113, from 32768 on */
