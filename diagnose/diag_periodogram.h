@@ -16,10 +16,10 @@
  * are split into tasks (diag_fftsplit.h) when their transform has a prime
  * factor above 16 without being prime; below n = 32768 a transform with a
  * prime factor above 7 is replaced by the chirp on a length 2^k or 3 x 2^k
- * (FFTW's plans for those lengths cost many times their transform).  The ordinates are formed in tasks too from 65536 of them.
- * Returns
- * HN_OK or HN_ENOMEM; ordinates that overflow are left infinite for the
- * caller to judge. */
+ * (FFTW's plans for those lengths cost many times their transform).  From
+ * 65536 ordinates they are formed in tasks too.  Returns HN_OK or
+ * HN_ENOMEM; ordinates that overflow are left infinite for the caller to
+ * judge. */
 int diag_periodogram(const double *d, size_t n, size_t q, double *I, double *total);
 
 /* Which route diag_periodogram takes for N: 0 half-length complex, 1 real,

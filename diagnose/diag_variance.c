@@ -388,9 +388,13 @@ static int block_tests(const double *x, size_t n, size_t nblocks, double alpha, 
     int rc = sizes && scratch && blk ? HN_OK : HN_ENOMEM;
     /* block means and sums of squares of the shifted data, for the detail
      * and (Brown-Forsythe) the practical size */
-    double *bm = scratch, *bss = scratch + nblocks, *more = scratch + 2 * nblocks;
-    double *zm = scratch + 4 * nblocks, *zs = scratch + 5 * nblocks;
+    double *bm = NULL, *bss = NULL, *more = NULL, *zm = NULL, *zs = NULL;
     if (rc == HN_OK) {
+        bm = scratch;
+        bss = scratch + nblocks;
+        more = scratch + 2 * nblocks;
+        zm = scratch + 4 * nblocks;
+        zs = scratch + 5 * nblocks;
         block_sizes(n, nblocks, sizes);
         rc = block_pass(x, sizes, nblocks, bf != NULL, blk, bm, bss, zm, zs);
     }
