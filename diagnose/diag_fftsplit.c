@@ -1,5 +1,6 @@
 /* diag_fftsplit.c - one decimation-in-time step over FFTW transforms, its pieces as OpenMP tasks. */
 #include "diag_fftsplit.h"
+#include "diag_dftdirect.h"
 #include "diag_fftplan.h"
 #include "hn_mem.h"
 #include "hn_status.h"
@@ -105,21 +106,25 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
     turns w = { NULL, NULL, 0, 0 };
     diag_plan *row = NULL;
     fftw_plan many = NULL, last = NULL;
+    diag_direct dd = { 0, 0, NULL, NULL };
+    int direct = diag_direct_takes(r);
     /* step 3: transforms across a, in chunks of C (a multiple of 4, so that
      * each chunk's first column is aligned like the first) */
     size_t C = ((s + RADIX_TASKS - 1) / RADIX_TASKS + 3) & ~(size_t)3;
     size_t chunks = (s + C - 1) / C, tail = s - (chunks - 1) * C;
     int rc = HN_OK;
-    if (!t || (!packed && !re) || turns_make(&w, len) != HN_OK) {
+    if (!t || (!packed && !re) || turns_make(&w, len) != HN_OK ||
+        (direct && diag_direct_make(&dd, r) != HN_OK)) {
         rc = HN_ENOMEM;
         goto done;
     }
     row = packed ? diag_plan_get(DIAG_PLAN_C2C_FWD, (int)s, t, t)
                  : diag_plan_get(DIAG_PLAN_R2C, (int)s, re, t);
-    if (chunks > 1)
+    if (!direct && chunks > 1)
         many = diag_plan_many((int)r, (int)C, t, (int)pitch, 1);
-    last = diag_plan_many((int)r, (int)tail, t, (int)pitch, 1);
-    if (!row || (chunks > 1 && !many) || !last) {
+    if (!direct)
+        last = diag_plan_many((int)r, (int)tail, t, (int)pitch, 1);
+    if (!row || (!direct && ((chunks > 1 && !many) || !last))) {
         rc = HN_ENOMEM;
         goto done;
     }
@@ -169,8 +174,13 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
      * entries a become X_{k1 + s a}. */
 #pragma omp taskgroup
     for (size_t c = 0; c < chunks; c++) {
-#pragma omp task firstprivate(c) shared(t, many, last)
-        fftw_execute_dft(c + 1 < chunks ? many : last, t + c * C, t + c * C);
+#pragma omp task firstprivate(c) shared(t, many, last, dd)
+        {
+            if (direct)
+                diag_direct_cols(&dd, t, pitch, c * C, c + 1 < chunks ? (c + 1) * C : s);
+            else
+                fftw_execute_dft(c + 1 < chunks ? many : last, t + c * C, t + c * C);
+        }
     }
 
     out->t = t;
@@ -185,5 +195,6 @@ done:
     free(t);
     free(re);
     free(w.coarse);
+    diag_direct_free(&dd);
     return rc;
 }

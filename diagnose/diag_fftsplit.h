@@ -8,7 +8,8 @@
  *   2. each row is transformed (length s) and its entry k1 turned by
  *      exp(-2 pi i a k1 / len);
  *   3. for each k1 < s, the r turned entries are transformed across a
- *      (length r), giving X_{k1 + s k2} for k2 < r.
+ *      (length r), giving X_{k1 + s k2} for k2 < r: by FFTW, or by the
+ *      direct sum (diag_dftdirect.h) when r is a prime it takes.
  * Each step is split into OpenMP tasks that the threads of the enclosing
  * team share; outside a parallel region they run one after another on the
  * calling thread, with the same digits. */

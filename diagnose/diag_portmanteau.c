@@ -289,14 +289,16 @@ typedef struct {
 static void ks_block(const double *I, size_t j0, size_t j1, size_t M, double base, double total,
                      ks_far *r)
 {
-    double cum = base, below = (double)(j0 - 1) / (double)M;
+    /* products with the reciprocals instead of two divisions a step (the
+     * divisions bound the loop; the steps and shares move by an ulp) */
+    double cum = base, inv_m = 1.0 / (double)M, inv_t = 1.0 / total;
+    double below = (double)(j0 - 1) * inv_m;
     *r = (ks_far){ 0.0, 0.0, 0.0, j0 };
     for (size_t j = j0; j < j1; j++) {
-        /* BELOW: (j-1)/M, the quotient of the step before (the same bits,
-         * one division fewer a step) */
-        double above = (double)j / (double)M;
+        /* BELOW: the step before's ABOVE, the same bits */
+        double above = (double)j * inv_m;
         cum += I[j - 1];
-        double c = cum / total;
+        double c = cum * inv_t;
         double dplus = above - c, dminus = c - below;
         double dj = dplus > dminus ? dplus : dminus;
         if (dj > r->D) {

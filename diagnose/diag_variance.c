@@ -282,19 +282,27 @@ static void describe_blocks(const double *bm, const double *bss, const size_t *s
         : "block variance outside chi-square band about the median block sd";
     char list[256] = "";
     size_t flagged = 0, start = 0;
+    /* the quantiles for the last block size met (the sizes take at most two
+     * values, and each inversion is an iteration) */
+    double z = gsl_cdf_ugaussian_Qinv(a), qlo = 0.0, qhi = 0.0;
+    size_t qm = 0;
     for (size_t b = 0; b < nb; b++) {
         size_t m = sizes[b];
         int out = 0;
         char item[96];
         if (which == 0) {
-            double z = gsl_cdf_ugaussian_Qinv(a);
             out = sw > 0.0 && fabs(bm[b] - mref) > z * sw / sqrt((double)m);
             snprintf(item, sizeof item, "block %zu (obs %zu-%zu) mean %+.3g pooled sd off",
                      b + 1, start + 1, start + m, sw > 0.0 ? (bm[b] - mref) / sw : 0.0);
         } else {
             double nu = (double)(m - 1);
             double q = sref > 0.0 ? nu * bs[b] * bs[b] / (sref * sref) : 0.0;
-            out = sref > 0.0 && (q < gsl_cdf_chisq_Pinv(a, nu) || q > gsl_cdf_chisq_Qinv(a, nu));
+            if (m != qm) {
+                qlo = gsl_cdf_chisq_Pinv(a, nu);
+                qhi = gsl_cdf_chisq_Qinv(a, nu);
+                qm = m;
+            }
+            out = sref > 0.0 && (q < qlo || q > qhi);
             snprintf(item, sizeof item, "block %zu (obs %zu-%zu) sd %.3g x median block sd",
                      b + 1, start + 1, start + m, sref > 0.0 ? bs[b] / sref : 0.0);
         }

@@ -442,16 +442,21 @@ static void test_periodogram_routes(void **state)
  * one piece (routes 0 and 1): 262146 = 2 x 3 x 43691 (half-length 3 rows of
  * 43691), 393219 = 3^2 x 43691 (3 real rows of 131073), 140008 = 2^3 x 11 x
  * 37 x 43 (half-length 11 rows of 6364) and 111111 = 3 x 7 x 11 x 13 x 37
- * (13 real rows of 8547), Gaussian data (GSL mt19937 seed 37).  Ordinates
- * to 1e-10 of the mean ordinate, totals to 1e-12. */
+ * (13 real rows of 8547); and with the direct sum down the columns
+ * (diag_dftdirect.h): 68374 = 2 x 17 x 2011 (half-length 17 rows of 2011)
+ * and 115373 = 113 x 1021 (113 real rows of 1021).  Gaussian data (GSL
+ * mt19937 seed 37).  Ordinates to 1e-10 of the mean ordinate, totals to
+ * 1e-12. */
 static void test_periodogram_split_long(void **state)
 {
     (void)state;
-    const size_t ns[4] = { 262146, 393219, 140008, 111111 };
-    const int split[4] = { 3, 4, 3, 4 }, whole[4] = { 0, 1, 0, 1 };
+    const size_t ns[6] = { 262146, 393219, 140008, 111111, 68374, 115373 };
+    const int split[6] = { 3, 4, 3, 4, 3, 4 }, whole[6] = { 0, 1, 0, 1, 0, 1 };
+    assert_int_equal(diag_split_radix(68374 / 2), 17);
+    assert_int_equal(diag_split_radix(115373), 113);
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 37UL);
-    for (int k = 0; k < 4; k++) {
+    for (int k = 0; k < 6; k++) {
         size_t n = ns[k], q = (n - 1) / 2;
         double *d = malloc(n * sizeof *d), *a = malloc(q * sizeof *a), *b = malloc(q * sizeof *b);
         assert_non_null(d);
