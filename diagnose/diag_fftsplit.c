@@ -1,6 +1,7 @@
 /* diag_fftsplit.c - one decimation-in-time step over FFTW transforms, its pieces as OpenMP tasks. */
 #include "diag_fftsplit.h"
 #include "diag_dftdirect.h"
+#include "diag_dftrader.h"
 #include "diag_fftplan.h"
 #include "hn_mem.h"
 #include "hn_status.h"
@@ -76,17 +77,140 @@ static int turns_make(turns *w, size_t len)
     return HN_OK;
 }
 
-/* Row a (A > 0): entry k1 times exp(-2 pi i a k1 / len); a k1 < len, so
- * the exponent is stepped exactly without reduction. */
-static void turn_row(fftw_complex *row, size_t s, size_t a, const turns *w)
+/* Row a (A > 0): entry k1 of SRC times exp(-2 pi i a k1 / len) into DST
+ * (the same array or another); a k1 < len, so the exponent is stepped
+ * exactly without reduction. */
+static void turn_row(fftw_complex *dst, const fftw_complex *src, size_t s, size_t a, const turns *w)
 {
+    dst[0][0] = src[0][0];
+    dst[0][1] = src[0][1];
     for (size_t k1 = 1, e = a; k1 < s; k1++, e += a) {
         const double *c = w->coarse + 2 * (e >> w->shift), *f = w->fine + 2 * (e & w->mask);
         double wr = c[0] * f[0] - c[1] * f[1], wi = c[0] * f[1] + c[1] * f[0];
-        double zr = row[k1][0], zi = row[k1][1];
-        row[k1][0] = zr * wr - zi * wi;
-        row[k1][1] = zr * wi + zi * wr;
+        double zr = src[k1][0], zi = src[k1][1];
+        dst[k1][0] = zr * wr - zi * wi;
+        dst[k1][1] = zr * wi + zi * wr;
     }
+}
+
+/* A column kernel: the direct sum for small primes, Rader's convolution
+ * from RADER_FROM on where it takes the prime (both faster there than
+ * FFTW's generic steps; diag_dftdirect.h, diag_dftrader.h), else none. */
+#define RADER_FROM 61
+
+typedef struct {
+    int kind;                  /* 0 none, 1 direct, 2 Rader */
+    diag_direct d;
+    diag_rader q;
+} colk;
+
+static int colk_kind(size_t p)
+{
+    if (p >= RADER_FROM && diag_rader_takes(p))
+        return 2;
+    return diag_direct_takes(p) ? 1 : 0;
+}
+
+static int colk_make(colk *k, size_t p)
+{
+    memset(k, 0, sizeof *k);
+    k->kind = colk_kind(p);
+    if (k->kind == 1)
+        return diag_direct_make(&k->d, p);
+    if (k->kind == 2)
+        return diag_rader_make(&k->q, p);
+    return HN_OK;
+}
+
+static void colk_free(colk *k)
+{
+    if (k->kind == 1)
+        diag_direct_free(&k->d);
+    else if (k->kind == 2)
+        diag_rader_free(&k->q);
+    k->kind = 0;
+}
+
+static int colk_run(const colk *k, fftw_complex *t, size_t pitch, size_t c0, size_t c1)
+{
+    if (k->kind == 1) {
+        diag_direct_cols(&k->d, t, pitch, c0, c1);
+        return HN_OK;
+    }
+    return diag_rader_cols(&k->q, t, pitch, c0, c1);
+}
+
+/* Rows of length s = p m, p the largest prime factor of s and above 13,
+ * whose p and m both have a column kernel (m prime), are transformed in two
+ * passes of those kernels instead of by FFTW: P and M are set, and 1
+ * returned. */
+static int two_pass(size_t s, size_t *p, size_t *m)
+{
+    size_t f = s, big = 1;
+    for (size_t d = 2; d <= f / d; d++)
+        while (f % d == 0) {
+            big = d;
+            f /= d;
+        }
+    if (f > 1)
+        big = f;
+    if (big <= 13 || big == s)
+        return 0;
+    size_t rest = s / big;
+    if (diag_smallest_factor(rest) != rest || !colk_kind(big) || !colk_kind(rest))
+        return 0;
+    *p = big;
+    *m = rest;
+    return 1;
+}
+
+/* exp(-2 pi i a k1 / s) at TW[k1 m + a] for the rows' two passes. */
+static int row_turns(size_t p, size_t m, fftw_complex **tw)
+{
+    const size_t s = p * m;
+    turns ws;
+    *tw = hn_alloc_long_aligned(64, s * sizeof **tw);
+    if (!*tw || turns_make(&ws, s) != HN_OK) {
+        free(*tw);
+        *tw = NULL;
+        return HN_ENOMEM;
+    }
+    for (size_t k1 = 0; k1 < p; k1++)
+        for (size_t a = 0, e = 0; a < m; a++, e += k1) {
+            const double *c = ws.coarse + 2 * (e >> ws.shift), *f = ws.fine + 2 * (e & ws.mask);
+            (*tw)[k1 * m + a][0] = c[0] * f[0] - c[1] * f[1];
+            (*tw)[k1 * m + a][1] = c[0] * f[1] + c[1] * f[0];
+        }
+    free(ws.coarse);
+    return HN_OK;
+}
+
+/* Row A of length s = p m (at Z) in two passes (decimation in time, x_{m u
+ * + a} at row u, column a): p-point transforms down the m columns in place;
+ * entry (k1, a) turned by TW into SC at (a, k1); m-point transforms down
+ * the p columns of SC, leaving X_{k1 + p k2} at (k2, k1), the natural
+ * order, copied back with the split's own turn (W) for rows A > 0. */
+static int row_two_pass(fftw_complex *z, size_t p, size_t m, const colk *kp, const colk *km,
+                        const fftw_complex *tw, fftw_complex *sc, size_t a, const turns *w)
+{
+    int rc = colk_run(kp, z, m, 0, m);
+    if (rc != HN_OK)
+        return rc;
+    for (size_t k1 = 0; k1 < p; k1++) {
+        const fftw_complex *y = z + k1 * m, *v = tw + k1 * m;
+        for (size_t u = 0; u < m; u++) {
+            double zr = y[u][0], zi = y[u][1], wr = v[u][0], wi = v[u][1];
+            sc[u * p + k1][0] = zr * wr - zi * wi;
+            sc[u * p + k1][1] = zr * wi + zi * wr;
+        }
+    }
+    if ((rc = colk_run(km, sc, p, 0, p)) != HN_OK)
+        return rc;
+    if (a > 0)
+        turn_row(z, sc, p * m, a, w);
+    else
+        memcpy(z, sc, p * m * sizeof *z);
+    return HN_OK;
 }
 
 int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
@@ -104,27 +228,34 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
     fftw_complex *t = hn_alloc_long_aligned(64, r * pitch * sizeof *t);
     double *re = packed ? NULL : hn_alloc_long_aligned(64, r * rpitch * sizeof *re);
     turns w = { NULL, NULL, 0, 0 };
+    fftw_complex *tw = NULL;
     diag_plan *row = NULL;
     fftw_plan many = NULL, last = NULL;
-    diag_direct dd = { 0, 0, NULL, NULL };
-    int direct = diag_direct_takes(r);
+    colk kc, kp, km;
+    memset(&kp, 0, sizeof kp);
+    memset(&km, 0, sizeof km);
+    int cols = colk_make(&kc, r) == HN_OK ? kc.kind : -1;
+    size_t p2 = 0, m2 = 0;
+    int two = packed && two_pass(s, &p2, &m2);
     /* step 3: transforms across a, in chunks of C (a multiple of 4, so that
      * each chunk's first column is aligned like the first) */
     size_t C = ((s + RADIX_TASKS - 1) / RADIX_TASKS + 3) & ~(size_t)3;
     size_t chunks = (s + C - 1) / C, tail = s - (chunks - 1) * C;
-    int rc = HN_OK;
-    if (!t || (!packed && !re) || turns_make(&w, len) != HN_OK ||
-        (direct && diag_direct_make(&dd, r) != HN_OK)) {
+    int rc = HN_OK, failed = 0;
+    if (!t || (!packed && !re) || turns_make(&w, len) != HN_OK || cols < 0 ||
+        (two && (colk_make(&kp, p2) != HN_OK || colk_make(&km, m2) != HN_OK ||
+                 row_turns(p2, m2, &tw) != HN_OK))) {
         rc = HN_ENOMEM;
         goto done;
     }
-    row = packed ? diag_plan_get(DIAG_PLAN_C2C_FWD, (int)s, t, t)
-                 : diag_plan_get(DIAG_PLAN_R2C, (int)s, re, t);
-    if (!direct && chunks > 1)
+    if (!two)
+        row = packed ? diag_plan_get(DIAG_PLAN_C2C_FWD, (int)s, t, t)
+                     : diag_plan_get(DIAG_PLAN_R2C, (int)s, re, t);
+    if (!cols && chunks > 1)
         many = diag_plan_many((int)r, (int)C, t, (int)pitch, 1);
-    if (!direct)
+    if (!cols)
         last = diag_plan_many((int)r, (int)tail, t, (int)pitch, 1);
-    if (!row || (!direct && ((chunks > 1 && !many) || !last))) {
+    if ((!two && !row) || (!cols && ((chunks > 1 && !many) || !last))) {
         rc = HN_ENOMEM;
         goto done;
     }
@@ -153,10 +284,15 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
      * symmetry), then its turn. */
 #pragma omp taskgroup
     for (size_t a = 0; a < r; a++) {
-#pragma omp task firstprivate(a) shared(t, re, row, w)
+#pragma omp task firstprivate(a) shared(t, re, row, w, tw, kp, km, failed)
         {
             fftw_complex *z = t + a * pitch;
-            if (packed) {
+            int ok = 1;
+            if (two) {
+                fftw_complex *sc = hn_alloc_long_aligned(64, s * sizeof *sc);
+                ok = sc && row_two_pass(z, p2, m2, &kp, &km, tw, sc, a, &w) == HN_OK;
+                free(sc);
+            } else if (packed) {
                 fftw_execute_dft(row->p, z, z);
             } else {
                 fftw_execute_dft_r2c(row->p, re + a * rpitch, z);
@@ -165,22 +301,35 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
                     z[k1][1] = -z[s - k1][1];
                 }
             }
-            if (a > 0)
-                turn_row(z, s, a, &w);
+            if (!ok) {
+#pragma omp atomic write
+                failed = 1;
+            } else if (a > 0 && !two) {
+                turn_row(z, z, s, a, &w);
+            }
         }
     }
 
     /* 3. Length-r transforms down the columns, in place: column k1's
      * entries a become X_{k1 + s a}. */
+    if (!failed) {
 #pragma omp taskgroup
-    for (size_t c = 0; c < chunks; c++) {
-#pragma omp task firstprivate(c) shared(t, many, last, dd)
-        {
-            if (direct)
-                diag_direct_cols(&dd, t, pitch, c * C, c + 1 < chunks ? (c + 1) * C : s);
-            else
-                fftw_execute_dft(c + 1 < chunks ? many : last, t + c * C, t + c * C);
+        for (size_t c = 0; c < chunks; c++) {
+#pragma omp task firstprivate(c) shared(t, many, last, kc, failed)
+            {
+                size_t c1 = c + 1 < chunks ? (c + 1) * C : s;
+                if (!cols)
+                    fftw_execute_dft(c + 1 < chunks ? many : last, t + c * C, t + c * C);
+                else if (colk_run(&kc, t, pitch, c * C, c1) != HN_OK) {
+#pragma omp atomic write
+                    failed = 1;
+                }
+            }
         }
+    }
+    if (failed) {
+        rc = HN_ENOMEM;
+        goto done;
     }
 
     out->t = t;
@@ -195,6 +344,10 @@ done:
     free(t);
     free(re);
     free(w.coarse);
-    diag_direct_free(&dd);
+    free(tw);
+    if (cols >= 0)
+        colk_free(&kc);
+    colk_free(&kp);
+    colk_free(&km);
     return rc;
 }

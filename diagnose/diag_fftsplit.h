@@ -6,10 +6,13 @@
  * the battery.  Here len = r s, r as diag_split_radix chooses it:
  *   1. the samples t = a + r u are gathered into r rows (a < r, u < s);
  *   2. each row is transformed (length s) and its entry k1 turned by
- *      exp(-2 pi i a k1 / len);
+ *      exp(-2 pi i a k1 / len): by FFTW, or, for complex rows whose length
+ *      is p m with p its largest prime factor, above 13, and m prime, both
+ *      taking one of the kernels of step 3, in two passes of them;
  *   3. for each k1 < s, the r turned entries are transformed across a
- *      (length r), giving X_{k1 + s k2} for k2 < r: by FFTW, or by the
- *      direct sum (diag_dftdirect.h) when r is a prime it takes.
+ *      (length r), giving X_{k1 + s k2} for k2 < r: by FFTW, by the direct
+ *      sum (diag_dftdirect.h) when r is a prime it takes, or by Rader's
+ *      convolution (diag_dftrader.h) from r = 61 on when r is one it takes.
  * Each step is split into OpenMP tasks that the threads of the enclosing
  * team share; outside a parallel region they run one after another on the
  * calling thread, with the same digits. */

@@ -444,19 +444,30 @@ static void test_periodogram_routes(void **state)
  * 37 x 43 (half-length 11 rows of 6364) and 111111 = 3 x 7 x 11 x 13 x 37
  * (13 real rows of 8547); and with the direct sum down the columns
  * (diag_dftdirect.h): 68374 = 2 x 17 x 2011 (half-length 17 rows of 2011)
- * and 115373 = 113 x 1021 (113 real rows of 1021).  Gaussian data (GSL
- * mt19937 seed 37).  Ordinates to 1e-10 of the mean ordinate, totals to
- * 1e-12. */
+ * and 115373 = 113 x 1021 (113 real rows of 1021); with Rader's
+ * convolution down the columns (diag_dftrader.h): 129667 = 127 x 1021 (127
+ * real rows) and 268822 = 2 x 257 x 523 (half-length 257 rows); and with
+ * rows in two passes of those kernels: 75946 = 2 x 13 x 127 x 23
+ * (half-length 13 rows of 127 x 23) and 480314 = 2 x 31 x 127 x 61
+ * (half-length 31 rows of 127 x 61).  Gaussian data (GSL mt19937 seed 37).
+ * Ordinates to 1e-10 of the mean ordinate, totals to 1e-12. */
 static void test_periodogram_split_long(void **state)
 {
     (void)state;
-    const size_t ns[6] = { 262146, 393219, 140008, 111111, 68374, 115373 };
-    const int split[6] = { 3, 4, 3, 4, 3, 4 }, whole[6] = { 0, 1, 0, 1, 0, 1 };
+    const size_t ns[10] = { 262146, 393219, 140008, 111111, 68374, 115373, 129667, 268822,
+                            75946, 480314 };
+    const int split[10] = { 3, 4, 3, 4, 3, 4, 4, 3, 3, 3 }, whole[10] = { 0, 1, 0, 1, 0, 1, 1, 0, 0, 0 };
     assert_int_equal(diag_split_radix(68374 / 2), 17);
     assert_int_equal(diag_split_radix(115373), 113);
+    assert_int_equal(diag_split_radix(129667), 127);
+    assert_int_equal(diag_split_radix(268822 / 2), 257);
+    assert_int_equal(diag_split_radix(75946 / 2), 13);
+    assert_int_equal(diag_split_radix(480314 / 2), 31);
+    for (int k = 6; k < 10; k++)   /* these four take the split by default too */
+        assert_int_equal(diag_periodogram_route(ns[k]), split[k]);
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 37UL);
-    for (int k = 0; k < 6; k++) {
+    for (int k = 0; k < 10; k++) {
         size_t n = ns[k], q = (n - 1) / 2;
         double *d = malloc(n * sizeof *d), *a = malloc(q * sizeof *a), *b = malloc(q * sizeof *b);
         assert_non_null(d);
@@ -486,7 +497,8 @@ static void test_periodogram_split_long(void **state)
 /* The cumulative periodogram on lengths whose ordinates are formed in tasks
  * (139992: 69995 of them, half-length 69996 = 2^2 3 19 307 split) and whose
  * cumulative sums run in blocks (3 and 2 of them; 111111 = 3 7 11 13 37,
- * split with radix 13): one thread and a team of two give the same bits,
+ * split with radix 13), and on 480314 (rows in two passes of Rader's
+ * convolution, columns by the direct sum): one thread and a team of two give the same bits,
  * and the KS distance agrees to 1e-12 (relative) with the definition
  * (header of diag_portmanteau.c) evaluated in long double on the ordinates
  * of FFTW's whole-length transform.  Gaussian noise plus a sinusoid of
@@ -494,11 +506,11 @@ static void test_periodogram_split_long(void **state)
 static void test_cum_periodogram_long(void **state)
 {
     (void)state;
-    const size_t ns[2] = { 139992, 111111 };
-    const int whole[2] = { 0, 1 };
+    const size_t ns[3] = { 139992, 111111, 480314 };
+    const int whole[3] = { 0, 1, 0 };
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 41UL);
-    for (int k = 0; k < 2; k++) {
+    for (int k = 0; k < 3; k++) {
         size_t n = ns[k], q = (n - 1) / 2, M = q - 1;
         double *x = malloc(n * sizeof *x), *d = malloc(n * sizeof *d), *I = malloc(q * sizeof *I);
         assert_non_null(x);
