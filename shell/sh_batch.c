@@ -15,7 +15,6 @@
 #include <strings.h>
 #include <unistd.h>
 
-#include <malloc.h>
 #include <omp.h>
 #include <sched.h>
 
@@ -500,11 +499,6 @@ int sh_batch_main(int argc, char **argv)
     if (threads < 1)
         threads = omp_get_max_threads();
     omp_set_num_threads(threads);       /* --threads 1 means one thread inside the checks too */
-    /* Every series allocates and frees arrays of about the same sizes: keep
-     * freed memory for the next series instead of handing it back to the
-     * system and faulting it in again (glibc's largest threshold). */
-    mallopt(M_MMAP_THRESHOLD, 32 * 1024 * 1024);
-    mallopt(M_TRIM_THRESHOLD, 64 * 1024 * 1024);
     size_t next = lo, done = 0, nfailed = 0;
     long count = (long)(hi - lo);
 
