@@ -243,7 +243,7 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
     size_t chunks = (s + C - 1) / C, tail = s - (chunks - 1) * C;
     int rc = HN_OK, failed = 0;
     if (!t || (!packed && !re) || turns_make(&w, len) != HN_OK || cols < 0 ||
-        (two && (colk_make(&kp, p2) != HN_OK || colk_make(&km, m2) != HN_OK ||
+        (two && (colk_make(&kp, p2) != HN_OK || (m2 != p2 && colk_make(&km, m2) != HN_OK) ||
                  row_turns(p2, m2, &tw) != HN_OK))) {
         rc = HN_ENOMEM;
         goto done;
@@ -290,7 +290,7 @@ int diag_split_dft(const double *x, int packed, size_t len, diag_split *out)
             int ok = 1;
             if (two) {
                 fftw_complex *sc = hn_alloc_long_aligned(64, s * sizeof *sc);
-                ok = sc && row_two_pass(z, p2, m2, &kp, &km, tw, sc, a, &w) == HN_OK;
+                ok = sc && row_two_pass(z, p2, m2, &kp, m2 == p2 ? &kp : &km, tw, sc, a, &w) == HN_OK;
                 free(sc);
             } else if (packed) {
                 fftw_execute_dft(row->p, z, z);
