@@ -331,6 +331,9 @@ void sh_csv_fast_take(const char *b, size_t len, long line0, const sh_csv_shape 
             f->no_split = 1; /* what it parsed past the stop is lost: not again here */
     } else if (z > b) {
         part o;
+        /* room for a row a line at once: growing by doubling copies the
+         * rows each time (a failure here leaves that to scan) */
+        (void)reserve(rows, rows->n + (size_t)count_lines(b, z), shape->tcol >= 0);
         scan(b, z, line0, shape, rows, &o);
         out->used = o.used;
         out->lines = o.lines;
