@@ -166,16 +166,28 @@ static void block(const diag_rader *r, fftw_complex *t, size_t pitch, size_t c, 
     memcpy(t + c, first, w * sizeof *first);
 }
 
+size_t diag_rader_work(const diag_rader *r)
+{
+    return r->n * RB;
+}
+
+int diag_rader_cols_with(const diag_rader *r, fftw_complex *t, size_t pitch, size_t c0, size_t c1,
+                         fftw_complex *work)
+{
+    fftw_complex x0[RB];
+    for (size_t c = c0; c < c1; c += RB)
+        block(r, t, pitch, c, c1 - c < RB ? c1 - c : RB, work, x0);
+    return HN_OK;
+}
+
 int diag_rader_cols(const diag_rader *r, fftw_complex *t, size_t pitch, size_t c0, size_t c1)
 {
     if (c1 <= c0)
         return HN_OK;
-    fftw_complex *buf = hn_alloc_long_aligned(64, r->n * RB * sizeof *buf);
+    fftw_complex *buf = hn_alloc_long_aligned(64, diag_rader_work(r) * sizeof *buf);
     if (!buf)
         return HN_ENOMEM;
-    fftw_complex x0[RB];
-    for (size_t c = c0; c < c1; c += RB)
-        block(r, t, pitch, c, c1 - c < RB ? c1 - c : RB, buf, x0);
+    diag_rader_cols_with(r, t, pitch, c0, c1, buf);
     free(buf);
     return HN_OK;
 }

@@ -46,5 +46,10 @@ void diag_rader_free(diag_rader *r);
  * k1], a < p, in place: entry a becomes X_a.  HN_OK or HN_ENOMEM (T
  * unchanged). */
 int diag_rader_cols(const diag_rader *r, fftw_complex *t, size_t pitch, size_t c0, size_t c1);
+/* The same in WORK, diag_rader_work(R) entries aligned to 64 bytes (FFTW's
+ * plan was made for such an array), for callers that keep one; HN_OK. */
+size_t diag_rader_work(const diag_rader *r);
+int diag_rader_cols_with(const diag_rader *r, fftw_complex *t, size_t pitch, size_t c0, size_t c1,
+                         fftw_complex *work);
 
 #endif

@@ -27,18 +27,21 @@ static void plan_drop(diag_plan *k)
     }
 }
 
-diag_plan *diag_plan_get(int kind, int n, void *in, void *out)
+static diag_plan *plan_take(int kind, int n, int w, void *in, void *out)
 {
     diag_plan *k = NULL;
 #pragma omp critical(diag_fftw_planner)
     {
         diag_plan **slot = kept[kind];
         for (int i = 0; i < KEEP && !k; i++)
-            if (slot[i] && slot[i]->n == n)
+            if (slot[i] && slot[i]->n == n && slot[i]->w == w)
                 k = slot[i];
         if (!k) {
             fftw_plan p = kind == DIAG_PLAN_R2C
                 ? fftw_plan_dft_r2c_1d(n, in, out, FFTW_ESTIMATE)
+                : kind == DIAG_PLAN_COLS
+                ? fftw_plan_many_dft(1, &n, w, in, NULL, w, 1, in, NULL, w, 1, FFTW_FORWARD,
+                                     FFTW_ESTIMATE)
                 : fftw_plan_dft_1d(n, in, out,
                                    kind == DIAG_PLAN_C2C_FWD ? FFTW_FORWARD : FFTW_BACKWARD,
                                    FFTW_ESTIMATE);
@@ -46,14 +49,15 @@ diag_plan *diag_plan_get(int kind, int n, void *in, void *out)
             if (k) {
                 k->p = p;
                 k->n = n;
+                k->w = w;
                 k->users = 0;
                 k->current = 1;
                 /* room: an empty slot, else the least recently used; then
                  * the oldest others while the points kept exceed the cap */
-                long points = n;
+                long points = (long)n * (w ? w : 1);
                 for (int i = 0; i < KEEP; i++)
                     if (slot[i])
-                        points += slot[i]->n;
+                        points += (long)slot[i]->n * (slot[i]->w ? slot[i]->w : 1);
                 for (;;) {
                     int old = -1, empty = -1, live = 0;
                     for (int i = 0; i < KEEP; i++) {
@@ -69,7 +73,7 @@ diag_plan *diag_plan_get(int kind, int n, void *in, void *out)
                         slot[empty] = k;
                         break;
                     }
-                    points -= slot[old]->n;
+                    points -= (long)slot[old]->n * (slot[old]->w ? slot[old]->w : 1);
                     plan_drop(slot[old]);
                     slot[old] = NULL;
                 }
@@ -83,6 +87,16 @@ diag_plan *diag_plan_get(int kind, int n, void *in, void *out)
         }
     }
     return k;
+}
+
+diag_plan *diag_plan_get(int kind, int n, void *in, void *out)
+{
+    return kind == DIAG_PLAN_COLS ? NULL : plan_take(kind, n, 0, in, out);
+}
+
+diag_plan *diag_plan_cols(int n, int w, fftw_complex *a)
+{
+    return n > 0 && w > 0 ? plan_take(DIAG_PLAN_COLS, n, w, a, a) : NULL;
 }
 
 void diag_plan_release(diag_plan *k)

@@ -6,9 +6,11 @@
  * the battery.  Here len = r s, r as diag_split_radix chooses it:
  *   1. the samples t = a + r u are gathered into r rows (a < r, u < s);
  *   2. each row is transformed (length s) and its entry k1 turned by
- *      exp(-2 pi i a k1 / len): by FFTW, or, for complex rows whose length
- *      is p m with p its largest prime factor, above 13, and m prime, both
- *      taking one of the kernels of step 3, in two passes of them;
+ *      exp(-2 pi i a k1 / len): by FFTW, or, for rows whose length is p m
+ *      with p its largest prime factor, above 13 and taking one of the
+ *      kernels of step 3, and m a prime taking one too or with no prime
+ *      factor above 7 (13 for short m; FFTW's), in two passes (real rows
+ *      two at a time, as the parts of one complex row);
  *   3. for each k1 < s, the r turned entries are transformed across a
  *      (length r), giving X_{k1 + s k2} for k2 < r: by FFTW, by the direct
  *      sum (diag_dftdirect.h) when r is a prime it takes, or by Rader's

@@ -2,10 +2,10 @@
 #include "sh_repl.h"
 #include "sh_journal.h"
 #include "sh_batch.h"
+#include "sh_alloc.h"
 
 #include <gsl/gsl_errno.h>
 #include <locale.h>
-#include <malloc.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -59,15 +59,7 @@ int main(int argc, char **argv)
 
     setlocale(LC_ALL, "C");
     gsl_set_error_handler_off();
-    /* A fit, the checks and FFTW's transforms allocate and free arrays of
-     * like sizes over and over: freed memory is kept for the next of them
-     * instead of being handed back to the system and faulted in again
-     * (glibc's largest thresholds, which its own rule reaches only after
-     * the first large block is freed).  At n = 10^6 a fit, as a whole
-     * process, took 6 to 14 % less time so, for up to a quarter more peak
-     * memory (GARCH(1,1): 39 to 49 MB, six times the data). */
-    mallopt(M_MMAP_THRESHOLD, 32 * 1024 * 1024);
-    mallopt(M_TRIM_THRESHOLD, 64 * 1024 * 1024);
+    sh_alloc_policy();
     if (argc > 1 && !strcmp(argv[1], "batch"))
         return sh_batch_main(argc - 1, argv + 1);
     for (int i = 1; i < argc; i++) {

@@ -261,7 +261,8 @@ def bench(tmp):
     ts = {1: [], 2: []}
     tm = {1: [], 2: []}
     tv = {1: [], 2: []}
-    for _ in range(7):
+    scaling_runs = 11
+    for _ in range(scaling_runs):
         for th in (1, 2):
             env = dict(os.environ, OMP_NUM_THREADS=str(th))
             t0 = time.perf_counter()
@@ -290,7 +291,7 @@ def bench(tmp):
                       "batch_varied_work": "40 series of n = 20000 + 137k, k = 0..39 (arma(1,1), seeds 500 + k): fit arma(1,1); check",
                       "scan_1_s": sc[1][1], "scan_2_s": sc[2][1], "scan_speedup": sc[1][1] / sc[2][1],
                       "batch_work": "6 series of n = 10^5 (arma21, garch, ar1garch, twice): fit arma(1,1); check",
-                      "scan_work": "scan p=0..2 q=0..2 on arma21, n = 10^5"}
+                      "scan_work": "scan p=0..2 q=0..2 on arma21, n = 10^5", "runs": scaling_runs}
     res["load_average_at_end"] = os.getloadavg()
     res["finished"] = time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime())
 
@@ -353,7 +354,8 @@ def report(r):
     L.append("start-up: hone -c quit %.2f ms, empty program with the same libraries %.2f ms: %.2fx (median of %d)"
              % (1e3 * s["hone_s"], 1e3 * s["empty_s"], s["ratio"], s["runs"]))
     c = r["scaling"]
-    L.append("threads: batch (%s) 1 thread %.3g s, 2 threads %.3g s: %.2fx"
+    L.append("threads (medians of %d runs, one and two threads alternating):" % c.get("runs", 7))
+    L.append("         batch (%s) 1 thread %.3g s, 2 threads %.3g s: %.2fx"
              % (c["batch_work"], c["batch_1_s"], c["batch_2_s"], c["batch_speedup"]))
     L.append("         batch (%s) 1 thread %.3g s, 2 threads %.3g s: %.2fx"
              % (c["batch_many_work"], c["batch_many_1_s"], c["batch_many_2_s"], c["batch_many_speedup"]))

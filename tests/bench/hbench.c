@@ -5,6 +5,7 @@
 #include "diag_checks.h"
 #include "diag_stats.h"
 #include "hn_status.h"
+#include "sh_alloc.h"
 #include "sh_csv.h"
 
 #include <gsl/gsl_errno.h>
@@ -282,6 +283,7 @@ static int bench_csv(const char *path, int reps, double *t)
 int main(int argc, char **argv)
 {
     gsl_set_error_handler_off();
+    sh_alloc_policy();   /* as the program runs */
     if (argc < 4) {
         fprintf(stderr, "usage: hbench fit SPEC FILE REPS | battery|checks FILE REPS [SPEC] | csv FILE REPS\n");
         return 2;

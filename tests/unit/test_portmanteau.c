@@ -448,26 +448,30 @@ static void test_periodogram_routes(void **state)
  * convolution down the columns (diag_dftrader.h): 129667 = 127 x 1021 (127
  * real rows) and 268822 = 2 x 257 x 523 (half-length 257 rows); and with
  * rows in two passes of those kernels: 75946 = 2 x 13 x 127 x 23
- * (half-length 13 rows of 127 x 23) and 480314 = 2 x 31 x 127 x 61
- * (half-length 31 rows of 127 x 61).  Gaussian data (GSL mt19937 seed 37).
- * Ordinates to 1e-10 of the mean ordinate, totals to 1e-12. */
+ * (half-length 13 rows of 127 x 23), 480314 = 2 x 31 x 127 x 61
+ * (half-length 31 rows of 127 x 61), 33153 = 3 x 43 x 257 (3 real rows of
+ * 257 x 43, two of them packed as one complex row) and, above, 111111 (13
+ * real rows of 37 x 231, the second pass by FFTW).  Gaussian data (GSL
+ * mt19937 seed 37).  Ordinates to 1e-10 of the mean ordinate, totals to
+ * 1e-12. */
 static void test_periodogram_split_long(void **state)
 {
     (void)state;
-    const size_t ns[10] = { 262146, 393219, 140008, 111111, 68374, 115373, 129667, 268822,
-                            75946, 480314 };
-    const int split[10] = { 3, 4, 3, 4, 3, 4, 4, 3, 3, 3 }, whole[10] = { 0, 1, 0, 1, 0, 1, 1, 0, 0, 0 };
+    const size_t ns[11] = { 262146, 393219, 140008, 111111, 68374, 115373, 129667, 268822,
+                            75946, 480314, 33153 };
+    const int split[11] = { 3, 4, 3, 4, 3, 4, 4, 3, 3, 3, 4 };
+    const int whole[11] = { 0, 1, 0, 1, 0, 1, 1, 0, 0, 0, 1 };
     assert_int_equal(diag_split_radix(68374 / 2), 17);
     assert_int_equal(diag_split_radix(115373), 113);
     assert_int_equal(diag_split_radix(129667), 127);
     assert_int_equal(diag_split_radix(268822 / 2), 257);
     assert_int_equal(diag_split_radix(75946 / 2), 13);
     assert_int_equal(diag_split_radix(480314 / 2), 31);
-    for (int k = 6; k < 10; k++)   /* these four take the split by default too */
+    for (int k = 6; k < 11; k++)   /* these take the split by default too */
         assert_int_equal(diag_periodogram_route(ns[k]), split[k]);
     gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
     gsl_rng_set(r, 37UL);
-    for (int k = 0; k < 10; k++) {
+    for (int k = 0; k < 11; k++) {
         size_t n = ns[k], q = (n - 1) / 2;
         double *d = malloc(n * sizeof *d), *a = malloc(q * sizeof *a), *b = malloc(q * sizeof *b);
         assert_non_null(d);
