@@ -1,6 +1,8 @@
 /* sh_alloc.c - the program's memory policy. */
 #include "sh_alloc.h"
 
+#include <stdlib.h>   /* defines __GLIBC__ where it is glibc */
+
 #if defined(__GLIBC__)
 #include <malloc.h>
 #endif
