@@ -6,8 +6,8 @@
  * into a cyclic convolution of length p - 1, taken here by two FFTW
  * transforms of that length (the kernel's transform b is made once).  When
  * p - 1 has no prime factor above 7 those run on FFTW's fixed-size kernels,
- * and a column costs 7 to 11 ns a point from p near 60 on (measured to
- * 8191): FFTW's own choice for such primes (Bluestein's identity on a power
+ * and a column costs 7 to 11 ns a point from p near 60 on (measured from 61 to
+ * 641): FFTW's own choice for such primes (Bluestein's identity on a power
  * of 2) took 13 to 23, the direct sum (diag_dftdirect.h) 15 at p = 113 and
  * grows with p.  Factors 11 and 13 are left out: FFTW took up to 110 ms to
  * plan such lengths (p = 8009), against at most 1.4 ms for the 82 primes
