@@ -69,7 +69,7 @@ hone: $(BUILD)/shell/sh_main.o $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
 	@echo "  LINK $@"
 	@$(CC) $(PROG_CFLAGS) -o $@ $^ $(PROG_OMP) $(PROG_LIBS)
 
-$(BUILD)/tests/%: tests/unit/%.c tests/unit/testutil.h $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
+$(BUILD)/tests/%: tests/unit/%.c tests/unit/testutil.h tests/unit/tu_dft.h $(BUILD)/libhoneshell.a $(BUILD)/libhone.a
 	@mkdir -p $(dir $@)
 	@echo "  LINK $@"
 	@$(CC) $(ALL_CFLAGS) -Itests/unit -o $@ $< $(BUILD)/libhoneshell.a $(BUILD)/libhone.a $(TEST_LIBS) $(LDLIBS)
