@@ -211,8 +211,8 @@ static int two_pass(size_t s, size_t *p, size_t *m)
     return 1;
 }
 
-/* Real rows A0 and A1 of RE (A1 < 0: none) as one complex row Z of S
- * points, x_A0 + i x_A1. */
+/* Two real rows of S points as one complex row Z, X0 + i X1 (X1 NULL: a
+ * row alone, imaginary parts zero). */
 static void pack_rows(const double *x0, const double *x1, size_t s, fftw_complex *z)
 {
     for (size_t k = 0; k < s; k++) {
