@@ -1,6 +1,8 @@
 /* test_portmanteau.c - t-test, Ljung-Box, Box-Pierce, cumulative periodogram and their tail probabilities. */
 #include "testutil.h"
 #include "diag_checks.h"
+#include "diag_dftdirect.h"
+#include "diag_dftrader.h"
 #include "diag_fftsplit.h"
 #include "diag_periodogram.h"
 #include "diag_stats.h"
@@ -498,6 +500,71 @@ static void test_periodogram_split_long(void **state)
     gsl_rng_free(r);
 }
 
+/* Lengths built to meet the split's kernels: r x p x m (odd, real rows) or
+ * 2 r p m (half-length complex rows), p a prime the direct sum or Rader's
+ * convolution takes, m such a prime or a smooth number, r a small prime or
+ * a kernel prime, drawn with GSL mt19937 seed 29 and kept between 32768 and
+ * 2 x 10^6 where the split takes them: ordinates against FFTW's
+ * whole-length transform (routes 0 and 1) to 1e-10 of the mean ordinate,
+ * totals to 1e-12, on Gaussian data.  8 lengths; 300 with
+ * HONE_LONG_TESTS=1 (all of those passed when this was written). */
+static void test_periodogram_split_sweep(void **state)
+{
+    (void)state;
+    const char *lv = getenv("HONE_LONG_TESTS");
+    const int want = lv && !strcmp(lv, "1") ? 300 : 8;
+    size_t kern[1200];
+    int nk = 0;
+    for (size_t p = 17; p < 8192 && nk < 1200; p++)
+        if (diag_direct_takes(p) || diag_rader_takes(p))
+            kern[nk++] = p;
+    static const size_t smooth_m[] = { 2, 3, 4, 6, 9, 16, 25, 27, 45, 63, 99, 125, 143,
+                                       231, 256, 375, 1001, 2025, 2079, 3003, 4096 };
+    static const size_t small_r[] = { 2, 3, 5, 7, 11, 13, 17, 19, 61, 73 };
+    gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(r, 29UL);
+    size_t cap = 2000000;
+    double *d = malloc(cap * sizeof *d), *a = malloc(cap / 2 * sizeof *a), *b = malloc(cap / 2 * sizeof *b);
+    assert_non_null(d);
+    assert_non_null(a);
+    assert_non_null(b);
+    int done = 0;
+    while (done < want) {
+        size_t p = kern[gsl_rng_uniform_int(r, (unsigned long)nk)];
+        size_t m = gsl_rng_uniform(r) < 0.4 ? kern[gsl_rng_uniform_int(r, (unsigned long)nk)]
+                                             : smooth_m[gsl_rng_uniform_int(r, 21)];
+        size_t rr = small_r[gsl_rng_uniform_int(r, 10)];
+        size_t n = gsl_rng_uniform(r) < 0.5 ? 2 * rr * p * m : rr * p * m;
+        if (n < 32768 || n > cap)
+            continue;
+        int route = diag_periodogram_route(n);
+        if (route != 3 && route != 4)
+            continue;
+        size_t q = (n - 1) / 2;
+        double mean = 0.0;
+        for (size_t t = 0; t < n; t++)
+            mean += d[t] = gsl_ran_gaussian(r, 1.0);
+        mean /= (double)n;
+        for (size_t t = 0; t < n; t++)
+            d[t] -= mean;
+        double ta = 0.0, tb = 0.0;
+        assert_int_equal(diag_periodogram_by(route == 3 ? 0 : 1, d, n, q, a, &ta), HN_OK);
+        assert_int_equal(diag_periodogram_by(route, d, n, q, b, &tb), HN_OK);
+        double worst = 0.0;
+        for (size_t j = 0; j < q; j++)
+            worst = fmax(worst, fabs(a[j] - b[j]));
+        if (!(worst < 1e-10 * ta / (double)q))
+            fail_msg("n = %zu (route %d): ordinates differ by %.3g of the mean", n, route,
+                     worst / (ta / (double)q));
+        TU_NEAR(tb / ta, 1.0, 1e-12);
+        done++;
+    }
+    free(d);
+    free(a);
+    free(b);
+    gsl_rng_free(r);
+}
+
 /* The cumulative periodogram on lengths whose ordinates are formed in tasks
  * (139992: 69995 of them, half-length 69996 = 2^2 3 19 307 split) and whose
  * cumulative sums run in blocks (3 and 2 of them; 111111 = 3 7 11 13 37,
@@ -568,6 +635,7 @@ int main(void)
         cmocka_unit_test(test_detail),
         cmocka_unit_test(test_periodogram_routes),
         cmocka_unit_test(test_periodogram_split_long),
+        cmocka_unit_test(test_periodogram_split_sweep),
         cmocka_unit_test(test_cum_periodogram_long),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
