@@ -439,6 +439,31 @@ static void test_periodogram_routes(void **state)
     assert_int_equal(diag_periodogram_by(3, four, 4, 1, &one, NULL), HN_EINVAL);
 }
 
+/* Gaussian data from R, centred, of length N in D; route SPLIT against
+ * route WHOLE (FFTW's whole-length transform): ordinates to 1e-10 of the
+ * mean ordinate, totals to 1e-12.  A and B hold (n - 1) / 2 values. */
+static void split_agrees(gsl_rng *r, double *d, double *a, double *b, size_t n, int whole,
+                         int split)
+{
+    size_t q = (n - 1) / 2;
+    double mean = 0.0;
+    for (size_t t = 0; t < n; t++)
+        mean += d[t] = gsl_ran_gaussian(r, 1.0);
+    mean /= (double)n;
+    for (size_t t = 0; t < n; t++)
+        d[t] -= mean;
+    double ta = 0.0, tb = 0.0;
+    assert_int_equal(diag_periodogram_by(whole, d, n, q, a, &ta), HN_OK);
+    assert_int_equal(diag_periodogram_by(split, d, n, q, b, &tb), HN_OK);
+    double worst = 0.0;
+    for (size_t j = 0; j < q; j++)
+        worst = fmax(worst, fabs(a[j] - b[j]));
+    if (!(worst < 1e-10 * ta / (double)q))
+        fail_msg("n = %zu (route %d): ordinates differ by %.3g of the mean", n, split,
+                 worst / (ta / (double)q));
+    TU_NEAR(tb / ta, 1.0, 1e-12);
+}
+
 /* The split routes on lengths whose rows are long enough to be gathered in
  * several pieces (s > 8192), against FFTW's transform of the whole length in
  * one piece (routes 0 and 1): 262146 = 2 x 3 x 43691 (half-length 3 rows of
@@ -453,9 +478,8 @@ static void test_periodogram_routes(void **state)
  * (half-length 13 rows of 127 x 23), 480314 = 2 x 31 x 127 x 61
  * (half-length 31 rows of 127 x 61), 33153 = 3 x 43 x 257 (3 real rows of
  * 257 x 43, two of them packed as one complex row) and, above, 111111 (13
- * real rows of 37 x 231, the second pass by FFTW).  Gaussian data (GSL
- * mt19937 seed 37).  Ordinates to 1e-10 of the mean ordinate, totals to
- * 1e-12. */
+ * real rows of 37 x 231, the second pass by FFTW).  split_agrees on each,
+ * GSL mt19937 seed 37. */
 static void test_periodogram_split_long(void **state)
 {
     (void)state;
@@ -479,20 +503,7 @@ static void test_periodogram_split_long(void **state)
         assert_non_null(d);
         assert_non_null(a);
         assert_non_null(b);
-        double mean = 0.0;
-        for (size_t t = 0; t < n; t++)
-            mean += d[t] = gsl_ran_gaussian(r, 1.0);
-        mean /= (double)n;
-        for (size_t t = 0; t < n; t++)
-            d[t] -= mean;
-        double ta = 0.0, tb = 0.0;
-        assert_int_equal(diag_periodogram_by(whole[k], d, n, q, a, &ta), HN_OK);
-        assert_int_equal(diag_periodogram_by(split[k], d, n, q, b, &tb), HN_OK);
-        double worst = 0.0;
-        for (size_t j = 0; j < q; j++)
-            worst = fmax(worst, fabs(a[j] - b[j]));
-        assert_true(worst < 1e-10 * ta / (double)q);
-        TU_NEAR(tb / ta, 1.0, 1e-12);
+        split_agrees(r, d, a, b, n, whole[k], split[k]);
         free(d);
         free(a);
         free(b);
@@ -504,10 +515,8 @@ static void test_periodogram_split_long(void **state)
  * 2 r p m (half-length complex rows), p a prime the direct sum or Rader's
  * convolution takes, m such a prime or a smooth number, r a small prime or
  * a kernel prime, drawn with GSL mt19937 seed 29 and kept between 32768 and
- * 2 x 10^6 where the split takes them: ordinates against FFTW's
- * whole-length transform (routes 0 and 1) to 1e-10 of the mean ordinate,
- * totals to 1e-12, on Gaussian data.  8 lengths; 300 with
- * HONE_LONG_TESTS=1 (all of those passed when this was written). */
+ * 2 x 10^6 where the split takes them: split_agrees on each.  8 lengths;
+ * 300 with HONE_LONG_TESTS=1 (all of those passed when this was written). */
 static void test_periodogram_split_sweep(void **state)
 {
     (void)state;
@@ -540,23 +549,7 @@ static void test_periodogram_split_sweep(void **state)
         int route = diag_periodogram_route(n);
         if (route != 3 && route != 4)
             continue;
-        size_t q = (n - 1) / 2;
-        double mean = 0.0;
-        for (size_t t = 0; t < n; t++)
-            mean += d[t] = gsl_ran_gaussian(r, 1.0);
-        mean /= (double)n;
-        for (size_t t = 0; t < n; t++)
-            d[t] -= mean;
-        double ta = 0.0, tb = 0.0;
-        assert_int_equal(diag_periodogram_by(route == 3 ? 0 : 1, d, n, q, a, &ta), HN_OK);
-        assert_int_equal(diag_periodogram_by(route, d, n, q, b, &tb), HN_OK);
-        double worst = 0.0;
-        for (size_t j = 0; j < q; j++)
-            worst = fmax(worst, fabs(a[j] - b[j]));
-        if (!(worst < 1e-10 * ta / (double)q))
-            fail_msg("n = %zu (route %d): ordinates differ by %.3g of the mean", n, route,
-                     worst / (ta / (double)q));
-        TU_NEAR(tb / ta, 1.0, 1e-12);
+        split_agrees(r, d, a, b, n, route == 3 ? 0 : 1, route);
         done++;
     }
     free(d);
